@@ -1,0 +1,224 @@
+/**
+ * Scenario format 1 (`plumeplan.scenario/1`) as TypeScript types: the contract between the map, the
+ * server, the command line and the solver. Field names and units follow
+ * `../shared/spec/scenario-format.md`; fields added by plumeplan keep the same habits (unit in the
+ * name, SI inside).
+ *
+ * These are the *parsed* types: defaults have been filled in by the schema in `schema.ts`
+ * (`parseScenario`), so optional-with-default fields are present here. The zod schema is checked
+ * against these types at compile time.
+ *
+ * Conventions, stated once:
+ * - positions are WGS 84 degrees (lat, lon); polygons are GeoJSON `[lon, lat]` rings, closed;
+ * - wind direction is the direction the wind blows FROM, degrees clockwise from north;
+ * - an hourly record's `time` marks the START of its hour (ISO 8601 with a time zone offset).
+ */
+
+export const SCENARIO_FORMAT = 'plumeplan.scenario/1' as const;
+export const RESULT_FORMAT = 'plumeplan.result/1' as const;
+
+/** Pasquill stability classes, A (very unstable) to F (moderately stable). */
+export const STABILITY_CLASSES = ['A', 'B', 'C', 'D', 'E', 'F'] as const;
+export type StabilityClass = (typeof STABILITY_CLASSES)[number];
+
+export type LandUse = 'rural' | 'urban';
+
+export interface Site {
+  lat: number;
+  lon: number;
+  /** "rural" (default) or "urban": selects wind-profile exponents and dispersion curves. */
+  landUse: LandUse;
+}
+
+export interface Domain {
+  /** square domain centred on the site [m] */
+  halfWidth_m: number;
+  /** horizontal cell size [m] */
+  spacing_m: number;
+  /** top of the grid, a no-flux lid [m] */
+  height_m: number;
+  /** number of vertical layers, stretched, thinnest at the ground */
+  layers: number;
+}
+
+export interface Washout {
+  /** Lambda = a_per_s * R^b with R in mm/h [1/s] */
+  a_per_s: number;
+  /** exponent b [-] */
+  b: number;
+}
+
+export interface Pollutant {
+  name: string;
+  /** first-order decay half-life [h]; null = conserved */
+  halfLife_h: number | null;
+  /** below-cloud scavenging; null = no washout */
+  washout: Washout | null;
+  /** dry deposition velocity at the ground [m/s] */
+  depositionVelocity_m_s: number;
+}
+
+/** A vertical temperature difference measured on a mast, used to derive the stability class. */
+export interface TemperatureDifference {
+  lowerHeight_m: number;
+  upperHeight_m: number;
+  /** T(upper) - T(lower) [K] */
+  difference_K: number;
+}
+
+/**
+ * The weather of one steady period (a steady run, or one hour of a series). Stability is either given
+ * or derived: from wind speed and sky (`cloudCover_oktas`, plus `time` for the solar elevation), or from
+ * `temperatureDifference`. After `resolveWeather` every state carries a stability class.
+ */
+export interface WeatherFields {
+  /** wind speed at anemometerHeight_m [m/s] */
+  windSpeed_m_s: number;
+  /** direction the wind blows FROM, clockwise from north [deg] */
+  windFrom_deg: number;
+  stability?: StabilityClass;
+  /** mixing height [m]; absent = plumeplan's screening default for the class */
+  mixingHeight_m?: number;
+  /** rain rate [mm/h] */
+  rain_mm_h: number;
+  /** air temperature near the ground [K] */
+  airTemperature_K: number;
+  /** height of the wind measurement [m] */
+  anemometerHeight_m: number;
+  /** total cloud cover [oktas, 0..8], used to derive stability */
+  cloudCover_oktas?: number;
+  /** mast temperature difference, used to derive stability */
+  temperatureDifference?: TemperatureDifference;
+}
+
+export interface SteadyWeather extends WeatherFields {
+  kind: 'steady';
+  /** optional ISO 8601 time, needed only to derive stability from sun and sky */
+  time?: string;
+}
+
+export interface WeatherHour extends WeatherFields {
+  /** ISO 8601 with time zone; marks the START of the hour */
+  time: string;
+}
+
+export interface HourlyWeather {
+  kind: 'hourly';
+  /** inline hours; exactly one of `hours` and `csv` is given in the file; after loading, `hours` is filled */
+  hours: WeatherHour[];
+  /** path of a CSV file, relative to the scenario file */
+  csv?: string;
+}
+
+/** One cell of a wind rose: a sector, a speed class and a stability class, with its frequency. */
+export interface WindRoseCell {
+  /** centre of the sector the wind blows FROM [deg] */
+  windFrom_deg: number;
+  /** representative speed of the speed class at anemometerHeight_m [m/s] */
+  windSpeed_m_s: number;
+  stability: StabilityClass;
+  /** fraction of the time in this cell [-]; all cells sum to 1 */
+  frequency: number;
+  mixingHeight_m?: number;
+}
+
+export interface WindRoseWeather {
+  kind: 'windRose';
+  /** sector width [deg], e.g. 30 for 12 sectors */
+  sectorWidth_deg: number;
+  cells: WindRoseCell[];
+  rain_mm_h: number;
+  airTemperature_K: number;
+  anemometerHeight_m: number;
+}
+
+export type Weather = SteadyWeather | HourlyWeather | WindRoseWeather;
+
+export type GaussianCurves = 'briggs' | 'pasquill-gifford';
+
+export type Dispersion =
+  | { kind: 'stability'; curves: GaussianCurves }
+  /** verification: constant diffusivities [m2/s]; Gaussian mode then uses sigma^2 = 2 K x / u */
+  | { kind: 'constant'; horizontal_m2_s: number; vertical_m2_s: number };
+
+export type SolverMode = 'grid' | 'gaussian';
+
+/** How an hourly series is run: each hour to its own steady state, or one continuous time-march. */
+export type HourlyMethod = 'independentHours' | 'continuous';
+
+export interface SolverOptions {
+  mode: SolverMode;
+  hourlyMethod: HourlyMethod;
+}
+
+export type WindProfile = 'powerLaw' | 'uniform';
+
+export interface PointSource {
+  kind: 'point';
+  id: string;
+  name: string;
+  lat: number;
+  lon: number;
+  /** stack height above ground [m] */
+  height_m: number;
+  /** inner diameter at the exit [m] */
+  diameter_m: number;
+  exitVelocity_m_s: number;
+  exitTemperature_K: number;
+  /** emission rate [g/s] */
+  emission_g_s: number;
+  /** false: release at height_m exactly */
+  plumeRise: boolean;
+}
+
+export interface AreaSource {
+  kind: 'area';
+  id: string;
+  name: string;
+  /** GeoJSON [lon, lat] ring, closed (first point = last point) */
+  polygon: [number, number][];
+  releaseHeight_m: number;
+  /** total emission rate of the polygon [g/s] */
+  emission_g_s: number;
+}
+
+export type Source = PointSource | AreaSource;
+
+export interface Receptor {
+  id: string;
+  name: string;
+  lat: number;
+  lon: number;
+  /** height above ground [m], >= 0; default 1.5 */
+  height_m: number;
+}
+
+export interface AirQualityStandard {
+  name: string;
+  limit_ug_m3: number;
+  /** averaging period [h]: 1 (hourly means), 24 (calendar-day means), 8760 or more = the period mean */
+  averaging_h: number;
+  /** number of averaging periods a year allowed above the limit */
+  allowedExceedances: number;
+}
+
+export interface Assessment {
+  background_ug_m3: number;
+  standards: AirQualityStandard[];
+}
+
+export interface Scenario {
+  format: typeof SCENARIO_FORMAT;
+  name: string;
+  site: Site;
+  /** absent = derived from the sources and receptors (see solver/grid) */
+  domain?: Domain;
+  pollutant: Pollutant;
+  weather: Weather;
+  dispersion: Dispersion;
+  solver: SolverOptions;
+  windProfile: WindProfile;
+  sources: Source[];
+  receptors: Receptor[];
+  assessment?: Assessment;
+}

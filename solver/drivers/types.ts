@@ -1,0 +1,142 @@
+/**
+ * What every run of one steady weather state takes and gives, whichever mode (grid or Gaussian)
+ * computes it. Hourly series and wind roses are sequences or weighted sums of these.
+ * Everything here is linear in the emission rates: doubling every emission_g_s doubles every field.
+ */
+import type {
+  Dispersion,
+  LandUse,
+  Pollutant,
+  SolverMode,
+  StabilityClass,
+  WindProfile,
+} from '../../scenario/types.ts';
+import type { LocalGrid } from '../grid/types.ts';
+
+/** Weather of one steady period with every field resolved (stability derived, calms applied). */
+export interface ResolvedWeather {
+  /** wind speed at anemometerHeight_m after the calms rule [m/s] */
+  windSpeed_m_s: number;
+  /** direction the wind blows FROM, clockwise from north [deg] */
+  windFrom_deg: number;
+  stability: StabilityClass;
+  /** mixing height [m] */
+  mixingHeight_m: number;
+  /** rain rate [mm/h] */
+  rain_mm_h: number;
+  /** air temperature near the ground [K] */
+  airTemperature_K: number;
+  /** height of the wind measurement [m] */
+  anemometerHeight_m: number;
+  /** true when the measured speed was below the calms threshold and was raised to it */
+  calm: boolean;
+}
+
+/** A point source placed on the local grid. */
+export interface PlacedPointSource {
+  kind: 'point';
+  id: string;
+  x_m: number;
+  y_m: number;
+  height_m: number;
+  diameter_m: number;
+  exitVelocity_m_s: number;
+  exitTemperature_K: number;
+  emission_g_s: number;
+  plumeRise: boolean;
+}
+
+/** One grid column's share of an area source: the exact polygon/cell overlap. */
+export interface AreaCellShare {
+  /** ground index i + nx * j */
+  column: number;
+  /** overlap area of polygon and cell [m2] */
+  overlap_m2: number;
+}
+
+/** An area source placed on the local grid. */
+export interface PlacedAreaSource {
+  kind: 'area';
+  id: string;
+  /** polygon ring in local metres, closed */
+  ring_m: [number, number][];
+  /** planar area of the ring in local metres [m2] */
+  area_m2: number;
+  /** centroid of the ring [m] */
+  x_m: number;
+  y_m: number;
+  releaseHeight_m: number;
+  emission_g_s: number;
+  /** exact overlap with each grid column it touches; sum of overlap_m2 = area_m2 */
+  shares: AreaCellShare[];
+}
+
+export type PlacedSource = PlacedPointSource | PlacedAreaSource;
+
+export interface PlacedReceptor {
+  id: string;
+  x_m: number;
+  y_m: number;
+  /** height above ground [m] */
+  height_m: number;
+}
+
+/** Everything one steady solve needs, already placed on the local grid. */
+export interface SteadyRunInput {
+  grid: LocalGrid;
+  sources: PlacedSource[];
+  receptors: PlacedReceptor[];
+  pollutant: Pollutant;
+  weather: ResolvedWeather;
+  dispersion: Dispersion;
+  landUse: LandUse;
+  windProfile: WindProfile;
+  /** height of the ground-level field used for footprints [m] (1.5 m, receptor default) */
+  groundLevelHeight_m: number;
+}
+
+/** Mass budget of a run [g]. emitted = inDomain + decayed + washedOut + dryDeposited + outflow. */
+export interface MassBudget {
+  /** what the figures cover, e.g. "time-march, 0 to 7200 s" or "steady state, one hour of operation" */
+  basis: string;
+  emitted: number;
+  inDomain: number;
+  decayed: number;
+  washedOut: number;
+  dryDeposited: number;
+  outflow: number;
+  /** (emitted - the sum of the rest) / emitted */
+  relativeImbalance: number;
+}
+
+export interface SourceReport {
+  id: string;
+  x_m: number;
+  y_m: number;
+  /** release height after plume rise [m] */
+  effectiveHeight_m: number;
+}
+
+export interface SteadyFieldResult {
+  mode: SolverMode;
+  /** concentration at groundLevelHeight_m, one value per column, index i + nx * j [ug/m3] */
+  groundLevel_ug_m3: Float64Array;
+  /** concentration at each receptor's height, in the order of SteadyRunInput.receptors [ug/m3] */
+  receptors_ug_m3: Float64Array;
+  sources: SourceReport[];
+  /** null where the mode has no budget to report (the Gaussian reference) */
+  massBudget_g: MassBudget | null;
+  /** time steps or sweeps taken */
+  steps: number;
+  wallSeconds: number;
+  /** plain-language notes about what was and was not applied, e.g. "dry deposition not applied" */
+  notes: string[];
+}
+
+/** Progress and cancellation for anything that may take more than a moment. */
+export interface RunControl {
+  /** fraction done in [0, 1] and a short message */
+  onProgress?: (fractionDone: number, message: string) => void;
+  /** aborting stops the run at the next check with an AbortError */
+  signal?: AbortSignal;
+}
