@@ -140,3 +140,33 @@ export interface RunControl {
   /** aborting stops the run at the next check with an AbortError */
   signal?: AbortSignal;
 }
+
+/** One named column of receptor figures, in the order of the scenario's receptors. */
+export interface ReceptorColumn {
+  /** column name in receptors.csv and key in summary.json, unit in the name, e.g. "mean_ug_m3" */
+  key: string;
+  values: Float64Array;
+}
+
+/** What a whole scenario run (steady, hourly series or wind rose) hands to the result writers. */
+export interface ScenarioRunResult {
+  mode: SolverMode;
+  weatherKind: 'steady' | 'hourly' | 'windRose';
+  grid: LocalGrid;
+  sources: SourceReport[];
+  massBudget_g: MassBudget | null;
+  /** time steps or sweeps taken in all */
+  steps: number;
+  wallSeconds: number;
+  /** the ground-level field the footprint is drawn from, index i + nx * j [ug/m3] */
+  footprint_ug_m3: Float64Array;
+  /** what footprint_ug_m3 is: "concentration" (steady) or "mean" (series, rose) */
+  footprintStatistic: 'concentration' | 'mean';
+  receptorColumns: ReceptorColumn[];
+  /** plain-language notes about what was and was not applied */
+  notes: string[];
+  /** extra summary.json entries (weather statistics, standards, stability frequencies), JSON-ready */
+  extraSummary: Record<string, unknown>;
+  /** extra files for the result folder, e.g. a wind-rose SVG */
+  extraFiles: { name: string; content: string }[];
+}
