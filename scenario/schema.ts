@@ -532,8 +532,8 @@ const windRoseWeatherSchema = strictObject(
     context.addIssue({
       code: 'custom',
       path: ['cells'],
-      params: { value: total },
-      message: `the cells' frequencies sum to ${Number(total.toFixed(6))}; they must sum to 1 (within ${WIND_ROSE_FREQUENCY_TOLERANCE})`,
+      params: { value: Number(total.toFixed(6)) },
+      message: `the cells' frequencies must sum to 1 (within ${WIND_ROSE_FREQUENCY_TOLERANCE}); the value shown is their sum`,
     });
   }
 });
@@ -611,6 +611,16 @@ const polygonSchema = z
         message: `${POLYGON_ALLOWED}; the ring is not closed: it starts at [${first}] and ends at [${last}]`,
       });
       return;
+    }
+    for (let index = 1; index < ring.length; index++) {
+      if (ring[index][0] === ring[index - 1][0] && ring[index][1] === ring[index - 1][1]) {
+        context.addIssue({
+          code: 'custom',
+          path: [index],
+          message: `must differ from the position before it (polygon[${index - 1}]); remove the repeated position`,
+        });
+        return;
+      }
     }
     const feature = turfPolygon([ring]);
     const crossings = turfKinks(feature).features.map((point) => point.geometry.coordinates);
