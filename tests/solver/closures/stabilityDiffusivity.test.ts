@@ -1,0 +1,164 @@
+/**
+ * The stability-dependent closure's pieces against their published forms (all from memory, as the
+ * module says): the neutral log law, the Golder (1972) fit, Businger-Dyer phi_h, the Troen-Mahrt /
+ * Holtslag-Boville shape, and the Briggs-growth horizontal construction.
+ */
+import { describe, expect, it } from 'vitest';
+import type { ResolvedWeather } from '../../../solver/drivers/types.ts';
+import type { LocalGrid } from '../../../solver/grid/types.ts';
+import {
+  BACKGROUND_DIFFUSIVITY_m2_s,
+  briggsSigmaY_m,
+  briggsSigmaZ_m,
+  createStabilityDiffusivity,
+  crosswindSpreadingLength_m,
+  frictionVelocity_m_s,
+  inverseObukhovLength_per_m,
+  phiHeat,
+  psiMomentum,
+  ROUGHNESS_LENGTH_m,
+  travelDistanceToHeight_m,
+  verticalDiffusivityAt_m2_s,
+  verticalProfileSettings,
+  VON_KARMAN,
+} from '../../../solver/closures/stabilityDiffusivity.ts';
+
+const weather = (stability: ResolvedWeather['stability'], windSpeed_m_s = 5, mixingHeight_m = 800): ResolvedWeather => ({
+  windSpeed_m_s, windFrom_deg: 270, stability, mixingHeight_m, rain_mm_h: 0, airTemperature_K: 288, anemometerHeight_m: 10, calm: false,
+});
+
+/** A small stand-in grid: only the vertical geometry matters to a closure. */
+function columnGrid(faces: number[]): LocalGrid {
+  const zFaces_m = Float64Array.from(faces);
+  const nz = faces.length - 1;
+  const zCentres_m = new Float64Array(nz);
+  const dz_m = new Float64Array(nz);
+  for (let k = 0; k < nz; k++) { zCentres_m[k] = (faces[k] + faces[k + 1]) / 2; dz_m[k] = faces[k + 1] - faces[k]; }
+  return { nx: 1, ny: 1, nz, spacing_m: 100, xWest_m: 0, ySouth_m: 0, zFaces_m, zCentres_m, dz_m,
+    projection: { definition: 'test', toLocal: () => [0, 0], toLonLat: () => [0, 0] } };
+}
+
+describe('surface-layer similarity', () => {
+  it('neutral u* is the log law kappa u / ln(z / z0) (common practice)', () => {
+    expect(frictionVelocity_m_s(5, 10, 0, 0.1)).toBeCloseTo((0.4 * 5) / Math.log(100), 12);
+  });
+
+  it('Golder (1972) fit 1/L = a + b log10 z0 (Myrup & Ranzieri 1976 via Seinfeld & Pandis, from memory)', () => {
+    expect(inverseObukhovLength_per_m('D', 0.1)).toBe(0);
+    expect(inverseObukhovLength_per_m('A', 0.1)).toBeCloseTo(-0.096 - 0.029, 12);
+    expect(inverseObukhovLength_per_m('F', 1)).toBeCloseTo(0.035, 12);
+    // ordering: unstable classes negative, stable positive, more so away from D
+    const r = ROUGHNESS_LENGTH_m.rural;
+    const order = (['A', 'B', 'C', 'D', 'E', 'F'] as const).map((c) => inverseObukhovLength_per_m(c, r));
+    for (let i = 1; i < order.length; i++) expect(order[i]).toBeGreaterThan(order[i - 1]);
+  });
+
+  it('Businger-Dyer phi_h and Paulson psi_m (Dyer 1974; Paulson 1970, from memory)', () => {
+    expect(phiHeat(0)).toBe(1);
+    expect(phiHeat(0.2)).toBeCloseTo(2, 12);
+    expect(phiHeat(-1)).toBeCloseTo(1 / Math.sqrt(17), 12);
+    expect(psiMomentum(0)).toBeCloseTo(0, 12);
+    expect(psiMomentum(0.1)).toBeCloseTo(-0.5, 12);
+    expect(psiMomentum(-1)).toBeGreaterThan(0); // unstable profiles are flatter than the log law
+  });
+
+  it('u* grows with instability at a fixed 10 m wind (flatter profile) and is proportional to the wind', () => {
+    const u = (c: ResolvedWeather['stability'], speed = 5) => verticalProfileSettings(weather(c, speed), 'rural').frictionVelocity_m_s;
+    expect(u('A')).toBeGreaterThan(u('D'));
+    expect(u('F')).toBeLessThan(u('D'));
+    expect(u('E', 7.5) / u('E', 5)).toBeCloseTo(1.5, 12);
+  });
+});
+
+describe('vertical profile K_z = kappa w_t z (1 - z/h)^2 (Troen & Mahrt 1986; Holtslag & Boville 1993)', () => {
+  it('neutral: kappa u* z (1 - z/h)^2 exactly', () => {
+    const s = verticalProfileSettings(weather('D'), 'rural');
+    for (const z of [1, 10, 100, 400]) {
+      expect(verticalDiffusivityAt_m2_s(s, z)).toBeCloseTo(VON_KARMAN * s.frictionVelocity_m_s * z * (1 - z / 800) ** 2, 12);
+    }
+  });
+
+  it('stable: divided by 1 + 5 z/L; unstable: similarity held above 0.1 h', () => {
+    const e = verticalProfileSettings(weather('E', 5, 400), 'rural');
+    const L = 1 / e.inverseObukhov_per_m;
+    expect(verticalDiffusivityAt_m2_s(e, 50)).toBeCloseTo((VON_KARMAN * e.frictionVelocity_m_s * 50 * (1 - 50 / 400) ** 2) / (1 + (5 * 50) / L), 12);
+    const b = verticalProfileSettings(weather('B', 5, 1200), 'rural');
+    const scaleAt = (z: number) => verticalDiffusivityAt_m2_s(b, z) / (VON_KARMAN * z * (1 - z / 1200) ** 2);
+    expect(scaleAt(300)).toBeCloseTo(scaleAt(120), 12);
+    expect(scaleAt(60)).toBeLessThan(scaleAt(120));
+  });
+
+  it('falls to the background at the ground face, at and above the mixing height', () => {
+    const s = verticalProfileSettings(weather('C', 5, 1000), 'rural');
+    expect(verticalDiffusivityAt_m2_s(s, 0)).toBe(BACKGROUND_DIFFUSIVITY_m2_s);
+    expect(verticalDiffusivityAt_m2_s(s, 1000)).toBe(BACKGROUND_DIFFUSIVITY_m2_s);
+    expect(verticalDiffusivityAt_m2_s(s, 1500)).toBe(BACKGROUND_DIFFUSIVITY_m2_s);
+    expect(verticalDiffusivityAt_m2_s(s, 100)).toBeGreaterThan(1);
+  });
+});
+
+describe('horizontal: Briggs growth at the distance where the plume mean height reaches z', () => {
+  it('sqrt(2/pi) sigma_z(x_z) = z inside the range, clamped outside', () => {
+    for (const c of ['B', 'D', 'E'] as const) {
+      for (const z of [2, 20, 45]) {
+        const x = travelDistanceToHeight_m(c, 'rural', z);
+        expect(Math.sqrt(2 / Math.PI) * briggsSigmaZ_m(c, 'rural', x)).toBeCloseTo(z, 6);
+      }
+    }
+    // E's sigma_z never exceeds 0.03 / 0.0003 = 100 m: a layer at 500 m takes the 10 km value
+    expect(travelDistanceToHeight_m('E', 'rural', 500)).toBe(10_000);
+  });
+
+  it('spreading length = (1/2) d(sigma_y^2)/dx at x_z (checked by a central difference)', () => {
+    for (const c of ['A', 'C', 'F'] as const) {
+      const z = 15;
+      const x = travelDistanceToHeight_m(c, 'urban', z);
+      const step = x * 1e-5;
+      const slope = (briggsSigmaY_m(c, 'urban', x + step) ** 2 - briggsSigmaY_m(c, 'urban', x - step) ** 2) / (2 * step);
+      expect(crosswindSpreadingLength_m(c, 'urban', z)).toBeCloseTo(slope / 2, 6);
+    }
+  });
+
+  it('Briggs sigma at 1 km match the REFERENCES.md check values (D 76.28 / 37.95 m, F 38.14 / 12.31 m) [derived]', () => {
+    expect(briggsSigmaY_m('D', 'rural', 1000)).toBeCloseTo(76.28, 2);
+    expect(briggsSigmaZ_m('D', 'rural', 1000)).toBeCloseTo(37.95, 2);
+    expect(briggsSigmaY_m('F', 'rural', 1000)).toBeCloseTo(38.14, 2);
+    expect(briggsSigmaZ_m('F', 'rural', 1000)).toBeCloseTo(12.31, 2);
+  });
+});
+
+describe('createStabilityDiffusivity', () => {
+  const grid = columnGrid([0, 3, 6.6, 11, 20, 40, 80, 160, 320, 640, 1000]);
+  const wind = (w: ResolvedWeather) => grid.zCentres_m.map((z) => w.windSpeed_m_s * (Math.max(z, 1) / 10) ** 0.15);
+
+  it('returns nz horizontal and nz + 1 vertical values, positive, K_h = u(z) x spreading length', () => {
+    const closure = createStabilityDiffusivity('rural');
+    const w = weather('D');
+    const kh = closure.horizontal_m2_s(grid, w, wind(w));
+    const kz = closure.vertical_m2_s(grid, w, wind(w));
+    expect(kh.length).toBe(grid.nz);
+    expect(kz.length).toBe(grid.nz + 1);
+    for (let k = 0; k < grid.nz; k++) {
+      expect(kh[k]).toBeCloseTo(wind(w)[k] * crosswindSpreadingLength_m('D', 'rural', grid.zCentres_m[k]), 12);
+    }
+    for (const v of kz) expect(v).toBeGreaterThan(0);
+  });
+
+  it('both diffusivities scale exactly with the wind speed (what makes speed reuse exact)', () => {
+    const closure = createStabilityDiffusivity('urban');
+    const slow = weather('E', 2, 400);
+    const fast = weather('E', 6, 400);
+    const khSlow = closure.horizontal_m2_s(grid, slow, wind(slow));
+    const khFast = closure.horizontal_m2_s(grid, fast, wind(fast));
+    const kzSlow = closure.vertical_m2_s(grid, slow, wind(slow));
+    const kzFast = closure.vertical_m2_s(grid, fast, wind(fast));
+    for (let k = 0; k < grid.nz; k++) expect(khFast[k] / khSlow[k]).toBeCloseTo(3, 10);
+    for (let k = 1; k < grid.nz; k++) if (grid.zFaces_m[k] < 400) expect(kzFast[k] / kzSlow[k]).toBeCloseTo(3, 10);
+  });
+
+  it('rejects a wrong wind array length and an unknown land use, naming them', () => {
+    const closure = createStabilityDiffusivity('rural');
+    expect(() => closure.horizontal_m2_s(grid, weather('D'), new Float64Array(3))).toThrow(/windSpeedAtLayer_m_s has 3/);
+    expect(() => createStabilityDiffusivity('suburban' as never)).toThrow(/landUse: "suburban"/);
+  });
+});
