@@ -59,7 +59,8 @@ function describeParseError(error: unknown): string {
     return `unknown option ${option}`;
   }
   if (code === 'ERR_PARSE_ARGS_INVALID_OPTION_VALUE') {
-    const option = /'(--?[\w-]+)/.exec(message)?.[1] ?? '';
+    // Node names the option as '-o, --out <value>': prefer the long name.
+    const option = /(--[\w-]+)/.exec(message)?.[1] ?? /'(-\w)/.exec(message)?.[1] ?? 'an option';
     if (/does not take an argument/.test(message)) return `${option} takes no value`;
     return `${option} needs a value (write ${option} VALUE, or ${option}=VALUE for a value starting with "-")`;
   }
