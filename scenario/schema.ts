@@ -17,10 +17,6 @@ import { z } from 'zod';
 import {
   SCENARIO_FORMAT,
   STABILITY_CLASSES,
-  type AreaSource,
-  type HourlyWeather,
-  type PointSource,
-  type Receptor,
   type Scenario,
 } from './types.ts';
 
@@ -500,7 +496,8 @@ const hourlyWeatherSchema = strictObject(
       }
     }
   })
-  .transform(({ kind, hours, csv }): HourlyWeather => (csv === undefined ? { kind, hours: hours ?? [] } : { kind, hours: hours ?? [], csv }));
+  // The result's type is left to inference so that the compile-time check below compares the schema itself.
+  .transform(({ kind, hours, csv }) => (csv === undefined ? { kind, hours: hours ?? [] } : { kind, hours: hours ?? [], csv }));
 
 /** How far the wind rose's frequencies may sum from 1 (rounding in published roses). */
 const WIND_ROSE_FREQUENCY_TOLERANCE = 0.005;
@@ -657,7 +654,7 @@ const pointSourceSchema = strictObject(
     plumeRise: flag('false: release at height_m exactly').default(true),
   },
   'a point source (stack)',
-).transform((source): PointSource => ({ ...source, name: source.name ?? source.id }));
+).transform((source) => ({ ...source, name: source.name ?? source.id }));
 
 const areaSourceSchema = strictObject(
   {
@@ -669,7 +666,7 @@ const areaSourceSchema = strictObject(
     emission_g_s: quantity({ atLeast: 0 }, 'g/s', 'total emission rate of the polygon'),
   },
   'an area source (yard, lagoon)',
-).transform((source): AreaSource => ({ ...source, name: source.name ?? source.id }));
+).transform((source) => ({ ...source, name: source.name ?? source.id }));
 
 const sourceSchema = z.discriminatedUnion('kind', [pointSourceSchema, areaSourceSchema], {
   error: 'must be one of "point", "area"',
@@ -687,7 +684,7 @@ const receptorSchema = strictObject(
     height_m: quantity({ atLeast: 0 }, 'm', 'height above ground; 0 = at the ground').default(RECEPTOR_DEFAULT_HEIGHT_m),
   },
   'a receptor: a place where concentrations are reported',
-).transform((receptor): Receptor => ({ ...receptor, name: receptor.name ?? receptor.id }));
+).transform((receptor) => ({ ...receptor, name: receptor.name ?? receptor.id }));
 
 /** Ids (or names) must be unique within a list: the second and later uses are reported. */
 function requireUnique(field: 'id' | 'name', listName: string) {
@@ -754,9 +751,10 @@ export const scenarioSchema = strictObject(
     assessment: assessmentSchema.optional(),
   },
   'a plumeplan scenario, format 1',
-).transform(({ $schema: _editorSchema, ...scenario }): Scenario => scenario);
+).transform(({ $schema: _editorSchema, ...scenario }) => scenario);
 
-// Compile-time check that the schema and the contract types agree, both ways.
+// Compile-time check that the schema and the contract types agree, both ways. (The transforms above
+// leave their result types to inference, so this compares the schema's own output with types.ts.)
 type AssignableTo<From extends To, To> = From;
 export type ScenarioSchemaMatchesTypes = [
   AssignableTo<z.output<typeof scenarioSchema>, Scenario>,
