@@ -215,7 +215,11 @@ function nullableQuantity(limits: NumberLimits, unit: string, description: strin
   return schema.nullable().describe(`${description} [${unit}]; null = ${nullMeaning}`);
 }
 
-/** Latitude: within [-90, 90], and away from the poles where the local transverse Mercator grid is not used. */
+/**
+ * Latitude: within [-90, 90], and away from the poles where the local transverse Mercator grid is
+ * not used. 84 degrees is where the UTM system hands over to polar stereographic (common practice
+ * of map projection); closer to a pole the meridians converge too fast for a plain metre grid.
+ */
 const POLAR_LIMIT_deg = 84;
 function latitude(description: string) {
   const allowed = 'must be a finite number in [-90, 90] [deg north]';
