@@ -12,8 +12,10 @@
  *
  * with the Businger-Dyer similarity functions (Dyer 1974, Boundary-Layer Meteorol. 7:363, from memory):
  * phi_h = 1 + 5 z/L (stable), phi_h = (1 - 16 z/L)^(-1/2) (unstable). The (1 - z/h)^2 shape takes the
- * turbulence to zero at the top of the mixed layer. Above the mixing height K_z is a small background
- * (BACKGROUND_DIFFUSIVITY_m2_s) so an elevated plume above the lid is nearly sealed off from the ground.
+ * turbulence to zero at the top of the mixed layer. Above the mixing height (and as a floor below it)
+ * K_z is a small background, BACKGROUND_LENGTH_m times u* (0.05 m x u*: about 0.01 to 0.03 m2/s), so
+ * an elevated plume above the lid is nearly sealed off from the ground. It is proportional to u* so
+ * that the whole closure stays proportional to the wind speed (plumeplan's choice).
  *
  * The friction velocity u* comes from the measured wind through the Monin-Obukhov log profile,
  *   u(z_a) = (u* / kappa) [ln(z_a / z0) - psi_m(z_a / L) + psi_m(z0 / L)],
@@ -68,8 +70,11 @@ const GOLDER_FIT: Readonly<Record<StabilityClass, { a_per_m: number; b_per_m: nu
   F: { a_per_m: 0.035, b_per_m: -0.036 },
 };
 
-/** Background eddy diffusivity above the mixing height and the floor everywhere [m2/s] (plumeplan's choice). */
-export const BACKGROUND_DIFFUSIVITY_m2_s = 0.01;
+/**
+ * Background eddy diffusivity above the mixing height, and its floor below, per unit friction velocity
+ * [m]: K_background = BACKGROUND_LENGTH_m * u* (plumeplan's choice; file comment).
+ */
+export const BACKGROUND_LENGTH_m = 0.05;
 
 /** Fraction of the mixed layer taken as the surface layer in unstable air (Holtslag & Boville 1993). */
 export const SURFACE_LAYER_FRACTION = 0.1;
@@ -246,11 +251,12 @@ export function verticalProfileSettings(weather: ResolvedWeather, landUse: LandU
 /** Vertical eddy diffusivity K_z at height z [m2/s] (Troen & Mahrt / Holtslag & Boville profile). */
 export function verticalDiffusivityAt_m2_s(settings: VerticalProfileSettings, z_m: number): number {
   const { frictionVelocity_m_s: uStar, inverseObukhov_per_m: inverseL, mixingHeight_m: h } = settings;
-  if (!(z_m > 0) || z_m >= h) return BACKGROUND_DIFFUSIVITY_m2_s;
+  const background_m2_s = BACKGROUND_LENGTH_m * uStar;
+  if (!(z_m > 0) || z_m >= h) return background_m2_s;
   const similarityHeight_m = inverseL < 0 ? Math.min(z_m, SURFACE_LAYER_FRACTION * h) : z_m;
   const velocityScale_m_s = uStar / phiHeat(similarityHeight_m * inverseL);
   const shape = (1 - z_m / h) * (1 - z_m / h);
-  return Math.max(BACKGROUND_DIFFUSIVITY_m2_s, VON_KARMAN * velocityScale_m_s * z_m * shape);
+  return Math.max(background_m2_s, VON_KARMAN * velocityScale_m_s * z_m * shape);
 }
 
 /**

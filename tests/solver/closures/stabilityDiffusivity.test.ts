@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import type { ResolvedWeather } from '../../../solver/drivers/types.ts';
 import type { LocalGrid } from '../../../solver/grid/types.ts';
 import {
-  BACKGROUND_DIFFUSIVITY_m2_s,
+  BACKGROUND_LENGTH_m,
   briggsSigmaY_m,
   briggsSigmaZ_m,
   createStabilityDiffusivity,
@@ -90,9 +90,12 @@ describe('vertical profile K_z = kappa w_t z (1 - z/h)^2 (Troen & Mahrt 1986; Ho
 
   it('falls to the background at the ground face, at and above the mixing height', () => {
     const s = verticalProfileSettings(weather('C', 5, 1000), 'rural');
-    expect(verticalDiffusivityAt_m2_s(s, 0)).toBe(BACKGROUND_DIFFUSIVITY_m2_s);
-    expect(verticalDiffusivityAt_m2_s(s, 1000)).toBe(BACKGROUND_DIFFUSIVITY_m2_s);
-    expect(verticalDiffusivityAt_m2_s(s, 1500)).toBe(BACKGROUND_DIFFUSIVITY_m2_s);
+    const background = BACKGROUND_LENGTH_m * s.frictionVelocity_m_s;
+    expect(verticalDiffusivityAt_m2_s(s, 0)).toBe(background);
+    expect(verticalDiffusivityAt_m2_s(s, 1000)).toBe(background);
+    expect(verticalDiffusivityAt_m2_s(s, 1500)).toBe(background);
+    expect(background).toBeGreaterThan(0.005);
+    expect(background).toBeLessThan(0.05);
     expect(verticalDiffusivityAt_m2_s(s, 100)).toBeGreaterThan(1);
   });
 });
@@ -153,7 +156,7 @@ describe('createStabilityDiffusivity', () => {
     const kzSlow = closure.vertical_m2_s(grid, slow, wind(slow));
     const kzFast = closure.vertical_m2_s(grid, fast, wind(fast));
     for (let k = 0; k < grid.nz; k++) expect(khFast[k] / khSlow[k]).toBeCloseTo(3, 10);
-    for (let k = 1; k < grid.nz; k++) if (grid.zFaces_m[k] < 400) expect(kzFast[k] / kzSlow[k]).toBeCloseTo(3, 10);
+    for (let k = 0; k <= grid.nz; k++) expect(kzFast[k] / kzSlow[k]).toBeCloseTo(3, 10);
   });
 
   it('rejects a wrong wind array length and an unknown land use, naming them', () => {
