@@ -103,8 +103,8 @@ export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {
   const downwindY = -Math.cos(theta);
 
   // Farthest travel within the grid, for the depletion table.
-  const width_m = grid.nx * grid.spacing_m;
-  const height_m = grid.ny * grid.spacing_m;
+  const extentEast_m = grid.nx * grid.spacing_m;
+  const extentNorth_m = grid.ny * grid.spacing_m;
   const notes: string[] = [];
   const reports: SourceReport[] = [];
   const prepared: PreparedSource[] = [];
@@ -137,7 +137,7 @@ export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {
         sigmas,
         lossRate_per_s,
         depositionVelocity_m_s,
-        maxDistance_m: Math.hypot(width_m, height_m) + Math.hypot(point.x_m - grid.xWest_m, point.y_m - grid.ySouth_m) + 1000,
+        maxDistance_m: Math.hypot(extentEast_m, extentNorth_m) + Math.hypot(point.x_m - grid.xWest_m, point.y_m - grid.ySouth_m) + 1000,
       });
       if (!plume.lidApplied && Number.isFinite(mixingHeight_m)) {
         notes.push(
@@ -166,7 +166,7 @@ export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {
         sigmas,
         lossRate_per_s,
         depositionVelocity_m_s,
-        maxDistance_m: 2 * Math.hypot(width_m, height_m) + 1000,
+        maxDistance_m: 2 * Math.hypot(extentEast_m, extentNorth_m) + 1000,
       });
       if (!plume.lidApplied && Number.isFinite(mixingHeight_m)) {
         notes.push(
