@@ -9,6 +9,7 @@
  */
 import { RESULT_FORMAT, type Scenario, type SolverMode } from '../scenario/types.ts';
 import type { MassBudget, ScenarioRunResult } from '../solver/drivers/types.ts';
+import { GROUND_LEVEL_HEIGHT_m } from '../solver/drivers/steadyScenario.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import {
   CONCENTRATION_SIGNIFICANT_FIGURES,
@@ -16,9 +17,6 @@ import {
   roundDecimals,
   roundSignificant,
 } from './rounding.ts';
-
-/** Height of the ground-level field the footprint and the peak come from [m] (the receptor default). */
-export const GROUND_LEVEL_HEIGHT_M = 1.5;
 
 /** Significant figures of masses in the budget. */
 const MASS_SIGNIFICANT_FIGURES = 6;
@@ -90,7 +88,7 @@ export interface ResultSummary {
 export interface SummaryOptions {
   /** the footprint's levels, ascending [ug/m3] */
   levels_ug_m3?: number[];
-  /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_M */
+  /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_m */
   groundLevelHeight_m?: number;
 }
 
@@ -152,7 +150,7 @@ export function buildSummary(
     footprint: {
       file: 'footprint.geojson',
       statistic: result.footprintStatistic,
-      height_m: options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_M,
+      height_m: options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m,
       levels_ug_m3: [...(options.levels_ug_m3 ?? [])],
     },
     caution: SCREENING_CAUTION,

@@ -9,7 +9,8 @@ import type { Scenario } from '../scenario/types.ts';
 import type { ScenarioRunResult } from '../solver/drivers/types.ts';
 import { footprintBands, type FootprintCollection } from './footprint.ts';
 import { buildReceptorsCsv } from './receptorsCsv.ts';
-import { buildSummary, GROUND_LEVEL_HEIGHT_M, type ResultSummary } from './summary.ts';
+import { GROUND_LEVEL_HEIGHT_m } from '../solver/drivers/steadyScenario.ts';
+import { buildSummary, type ResultSummary } from './summary.ts';
 
 export const SUMMARY_FILE = 'summary.json';
 export const RECEPTORS_FILE = 'receptors.csv';
@@ -49,7 +50,7 @@ export async function writeResultFolder(
   result: ScenarioRunResult,
   options: ResultFolderOptions = {},
 ): Promise<WrittenResultFolder> {
-  const groundLevelHeight_m = options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_M;
+  const groundLevelHeight_m = options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m;
   for (const extra of result.extraFiles) checkExtraFileName(extra.name);
 
   // Build everything before touching the disk, so a failure leaves no half-written folder.

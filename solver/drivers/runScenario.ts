@@ -1,0 +1,105 @@
+/**
+ * A whole scenario, from the parsed file to what the result writers take: geometry (projection, grid,
+ * placed sources and receptors), weather resolution, then a dispatch by weather kind. Pure: no files,
+ * no process, no console; the command line and the server both call this.
+ */
+import type { Scenario, SolverMode } from '../../scenario/types.ts';
+import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
+import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
+import { UnavailableError, type SteadySolver } from './solveSteady.ts';
+import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
+import type { RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
+
+/**
+ * Input the scenario file passed its schema with but that cannot be run as given (a source outside the
+ * domain, a grid too large for memory, weather that cannot be resolved). The message starts with the
+ * field path. The command line exits 2 on it, as for any other invalid input.
+ */
+export class ScenarioInputError extends Error {
+  override name = 'ScenarioInputError';
+}
+
+export interface RunScenarioOptions {
+  /** overrides scenario.solver.mode */
+  mode?: SolverMode;
+  control?: RunControl;
+  /** the steady solver; default solveSteady (in process); the command line may pass a worker-backed one */
+  solve?: SteadySolver;
+}
+
+/**
+ * Run a scenario.
+ *
+ * @param scenario a parsed scenario (defaults filled by the schema)
+ * @param options mode override, progress and cancellation, steady solver
+ * @returns the result for the writers (summary.json, receptors.csv, footprint.geojson)
+ * @throws ScenarioInputError naming the field when the geometry or the weather cannot be used
+ * @throws UnavailableError for a capability not in this build (grid mode before the solver lands)
+ * @example const result = await runScenario(scenario, { mode: 'gaussian' });
+ */
+export async function runScenario(scenario: Scenario, options: RunScenarioOptions = {}): Promise<ScenarioRunResult> {
+  const mode = options.mode ?? scenario.solver.mode;
+  const control = options.control ?? {};
+  control.onProgress?.(0, 'preparing the grid');
+  const geometry = asInputError(() => prepareScenarioGeometry(scenario));
+  const domainSummary = { ...geometry.domain, derived: geometry.domainDerived };
+
+  const weather = scenario.weather;
+  switch (weather.kind) {
+    case 'steady': {
+      const resolution = asInputError(() => resolveWeatherWithSource(weather, scenario.site, 'weather'));
+      const input = steadyInput(scenario, geometry, resolution.weather);
+      const weatherSummary: Record<string, unknown> = {
+        kind: 'steady',
+        ...resolution.weather,
+        stabilitySource: resolution.stabilitySource,
+      };
+      if (resolution.solarElevation_deg !== undefined) weatherSummary.solarElevation_deg = resolution.solarElevation_deg;
+      const extraSummary: Record<string, unknown> = { domain: domainSummary, weather: weatherSummary };
+      if (scenario.assessment !== undefined) {
+        extraSummary.assessment = {
+          ...scenario.assessment,
+          note:
+            'one steady weather state is one hour of one weather: compare with the standards through an hourly ' +
+            'series or a wind rose, which give the statistics each standard is defined by',
+        };
+      }
+      return runSteadyScenario(input, { mode, control, solve: options.solve, extraSummary });
+    }
+    case 'hourly':
+      throw new UnavailableError('weather.kind "hourly": hourly series arrive with the weather work and are not available in this build yet');
+    case 'windRose':
+      throw new UnavailableError('weather.kind "windRose": wind roses arrive with the weather work and are not available in this build yet');
+    default:
+      throw new ScenarioInputError(`weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)} is not a weather kind`);
+  }
+}
+
+/** The steady solve's input for one resolved weather state. */
+export function steadyInput(
+  scenario: Scenario,
+  geometry: ScenarioGeometry,
+  weather: SteadyRunInput['weather'],
+): SteadyRunInput {
+  return {
+    grid: geometry.grid,
+    sources: geometry.sources,
+    receptors: geometry.receptors,
+    pollutant: scenario.pollutant,
+    weather,
+    dispersion: scenario.dispersion,
+    landUse: scenario.site.landUse,
+    windProfile: scenario.windProfile,
+    groundLevelHeight_m: GROUND_LEVEL_HEIGHT_m,
+  };
+}
+
+/** RangeErrors from geometry and weather name a field of the scenario: they are input errors. */
+function asInputError<T>(compute: () => T): T {
+  try {
+    return compute();
+  } catch (error) {
+    if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
+    throw error;
+  }
+}
