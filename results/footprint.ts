@@ -17,6 +17,7 @@
 import { contours } from 'd3-contour';
 import { difference, featureCollection, multiPolygon } from '@turf/turf';
 import type { Feature, MultiPolygon, Polygon, Position } from 'geojson';
+import { GROUND_LEVEL_HEIGHT_m } from '../solver/drivers/steadyScenario.ts';
 import type { LocalGrid } from '../solver/grid/types.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import { LON_LAT_DECIMALS, roundDecimals, roundSignificant } from './rounding.ts';
@@ -69,7 +70,7 @@ export interface FootprintOptions {
   scenarioName?: string;
   /** statistic the field holds; default "concentration" */
   statistic?: 'concentration' | 'mean';
-  /** height of the ground-level field [m]; default 1.5 */
+  /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_m (1.5) */
   height_m?: number;
 }
 
@@ -162,7 +163,7 @@ export function footprintBands(
   // d3-contour indexes with [] only, so a typed array serves as well as a plain one.
   const values = field_ug_m3 as unknown as number[];
   const generator = contours().size([nx, ny]).smooth(true);
-  const atOrAbove = levels.map((level) => generator.contour(values, level).coordinates);
+  const atOrAbove = levels.map((level) => assignHoles(generator.contour(values, level).coordinates));
 
   const features: Feature<Polygon | MultiPolygon, FootprintBandProperties>[] = [];
   levels.forEach((lower, k) => {
@@ -194,7 +195,7 @@ export function footprintBands(
       scenario: options.scenarioName ?? '',
       statistic: options.statistic ?? 'concentration',
       units: 'ug/m3',
-      height_m: options.height_m ?? 1.5,
+      height_m: options.height_m ?? GROUND_LEVEL_HEIGHT_m,
       levels_ug_m3: [...levels],
       levelsChosen,
       peak_ug_m3: roundSignificant(fieldRange(field_ug_m3).peak, 3),
@@ -216,6 +217,82 @@ function fieldRange(field: ArrayLike<number>): { minimum: number; peak: number }
   return { minimum, peak };
 }
 
+/**
+ * Give each hole to the exterior it really lies in. d3-contour hands a hole to the first exterior whose
+ * ring contains it, which for nested islands (a peak inside a crater inside a ridge) can be an outer
+ * exterior rather than the island around the hole. Rings of one level never cross, so the exteriors
+ * containing a hole are nested, and its own is the smallest of them.
+ */
+export function assignHoles(polygons: Position[][][]): Position[][][] {
+  const exteriors = polygons.map((polygon) => ({ ring: polygon[0], area: Math.abs(signedArea(polygon[0])), box: boundingBox(polygon[0]) }));
+  const holes = polygons.flatMap((polygon) => polygon.slice(1));
+  const regrouped: Position[][][] = exteriors.map((exterior) => [exterior.ring]);
+  const bySize = exteriors.map((_, index) => index).sort((a, b) => exteriors[a].area - exteriors[b].area);
+  for (const hole of holes) {
+    const holeArea = Math.abs(signedArea(hole));
+    const holeBox = boundingBox(hole);
+    const owner = bySize.find((index) => {
+      const exterior = exteriors[index];
+      return exterior.area >= holeArea && boxInside(holeBox, exterior.box) && ringInsideRing(hole, exterior.ring);
+    });
+    // A hole inside no exterior cannot come out of marching squares; keep d3's choice rather than drop it.
+    if (owner === undefined) {
+      const original = polygons.findIndex((polygon) => polygon.includes(hole));
+      regrouped[original].push(hole);
+    } else {
+      regrouped[owner].push(hole);
+    }
+  }
+  return regrouped;
+}
+
+type Box = [number, number, number, number];
+
+function boundingBox(ring: Position[]): Box {
+  let west = Infinity;
+  let south = Infinity;
+  let east = -Infinity;
+  let north = -Infinity;
+  for (const [u, v] of ring) {
+    if (u < west) west = u;
+    if (u > east) east = u;
+    if (v < south) south = v;
+    if (v > north) north = v;
+  }
+  return [west, south, east, north];
+}
+
+function boxInside(inner: Box, outer: Box): boolean {
+  return inner[0] >= outer[0] && inner[1] >= outer[1] && inner[2] <= outer[2] && inner[3] <= outer[3];
+}
+
+/**
+ * Whether ring `inner` lies inside ring `outer`, given that the two do not cross. The first vertex of
+ * `inner` not on `outer` decides; rings drawn through cells exactly at the level can share vertices.
+ */
+function ringInsideRing(inner: Position[], outer: Position[]): boolean {
+  for (const point of inner) {
+    const where = pointInRing(point, outer);
+    if (where !== 'boundary') return where === 'inside';
+  }
+  return false;
+}
+
+/** Crossing-number test, with points on an edge reported as such (grid units, tolerance 1e-9). */
+function pointInRing(point: Position, ring: Position[]): 'inside' | 'outside' | 'boundary' {
+  const [u, v] = point;
+  let inside = false;
+  for (let p = 0, q = ring.length - 1; p < ring.length; q = p, p += 1) {
+    const [u1, v1] = ring[q];
+    const [u2, v2] = ring[p];
+    const cross = (u2 - u1) * (v - v1) - (v2 - v1) * (u - u1);
+    const withinSegment = (u - u1) * (u - u2) <= 1e-18 && (v - v1) * (v - v2) <= 1e-18;
+    if (Math.abs(cross) <= 1e-9 * Math.hypot(u2 - u1, v2 - v1) && withinSegment) return 'boundary';
+    if (v1 > v !== v2 > v && u < u1 + ((v - v1) * (u2 - u1)) / (v2 - v1)) inside = !inside;
+  }
+  return inside ? 'inside' : 'outside';
+}
+
 /** The region of `outer` not inside `inner`, both MultiPolygon coordinates in grid units. */
 function subtract(outer: Position[][][], inner: Position[][][]): Position[][][] {
   if (outer.length === 0) return [];
@@ -229,13 +306,15 @@ function subtract(outer: Position[][][], inner: Position[][][]): Position[][][] 
 /**
  * One polygon from grid units to rounded lon/lat with RFC 7946 winding (exterior counter-clockwise,
  * holes clockwise). Rounding can merge neighbouring vertices, so repeats are dropped afterwards and a
- * ring left with fewer than three distinct corners is dropped (with its holes, if it is the exterior).
+ * ring left with fewer than three distinct corners or with no area is dropped (with its holes, if it is
+ * the exterior).
  */
 function toLonLatPolygon(polygon: Position[][], grid: GroundGrid): Position[][] | null {
   const rings: Position[][] = [];
   for (let r = 0; r < polygon.length; r += 1) {
     const ring = toLonLatRing(polygon[r], grid);
-    if (ring === null) {
+    // Rings drawn through cells exactly at a level can enclose nothing: such a ring is no boundary.
+    if (ring === null || signedArea(ring) === 0) {
       if (r === 0) return null;
       continue;
     }

@@ -9,9 +9,9 @@ import { booleanPointInPolygon } from '@turf/turf';
 import type { Position } from 'geojson';
 import { describe, expect, it } from 'vitest';
 import { SCREENING_CAUTION } from '../../results/caution.ts';
-import { checkLevels, defaultFootprintLevels, footprintBands, type FootprintCollection } from '../../results/footprint.ts';
+import { assignHoles, checkLevels, defaultFootprintLevels, footprintBands, type FootprintCollection } from '../../results/footprint.ts';
 import { formatFootprint } from '../../results/writeResultFolder.ts';
-import { localAreaOf, makeTestGrid, readFootprintFixture, roundNumbers, shoelaceArea } from './helpers.ts';
+import { localAreaOf, localPerimeterOf, makeTestGrid, readFootprintFixture, roundNumbers, shoelaceArea } from './helpers.ts';
 
 const FIXTURES = path.join(import.meta.dirname, '..', 'fixtures', 'footprint');
 const fixtureNames = readdirSync(path.join(FIXTURES, 'in'))
@@ -164,15 +164,50 @@ describe('band nesting', () => {
     });
   }
 
-  it('bands do not overlap: their areas add up to the area at or above the lowest level', () => {
-    const { grid, field } = readFootprintFixture(path.join(FIXTURES, 'in', 'edge-plume.json'));
-    const bands = footprintBands(field, grid);
-    const lowest = bands.properties.levels_ug_m3[0];
-    const all = footprintBands(field, grid, { levels_ug_m3: [lowest] });
-    const sum = bands.features.reduce((total, feature) => total + localAreaOf(polygonsOf(feature.geometry), grid), 0);
-    const whole = localAreaOf(polygonsOf(all.features[0].geometry), grid);
-    // Conservation of area; 1e-6 relative allows the 7-decimal rounding of shared edges.
-    expect(Math.abs(sum - whole) / whole).toBeLessThan(1e-6);
+  for (const name of fixtureNames.filter((fixture) => fixture !== 'all-zero')) {
+    it(`${name}: bands do not overlap, their areas add up to the area at or above the lowest level`, () => {
+      const { fixture, grid, field } = readFootprintFixture(path.join(FIXTURES, 'in', `${name}.json`));
+      const bands = footprintBands(field, grid, { levels_ug_m3: fixture.levels_ug_m3 });
+      const lowest = bands.properties.levels_ug_m3[0];
+      const all = footprintBands(field, grid, { levels_ug_m3: [lowest] });
+      const sum = bands.features.reduce((total, feature) => total + localAreaOf(polygonsOf(feature.geometry), grid), 0);
+      const whole = localAreaOf(polygonsOf(all.features[0].geometry), grid);
+      // Conservation of area. Rounding to 7 decimals moves a vertex by at most 0.5e-7 degree (under
+      // 0.6 cm), so each band's area may change by at most its rings' length times 0.6 cm.
+      const allowed_m2 = [...bands.features, ...all.features].reduce(
+        (total, feature) => total + localPerimeterOf(polygonsOf(feature.geometry), grid) * 0.006,
+        0,
+      );
+      expect(Math.abs(sum - whole)).toBeLessThanOrEqual(allowed_m2);
+      expect(allowed_m2 / whole).toBeLessThan(1e-3);
+    });
+  }
+});
+
+describe('holes go to the exterior they lie in', () => {
+  // Rings of one level never cross, so a hole belongs to the smallest exterior around it. The
+  // integer-plateaus fixture is a field where d3-contour's own grouping gets this wrong (its band
+  // areas then fail the conservation check above); these cases state the rule on plain squares.
+  const square = (west: number, south: number, side: number): Position[] => [
+    [west, south], [west + side, south], [west + side, south + side], [west, south + side], [west, south],
+  ];
+  const hole = (ring: Position[]): Position[] => [...ring].reverse();
+
+  it('moves a hole given to the wrong exterior', () => {
+    // A 10 x 10 square, a separate 2 x 2 island east of it, and a hole inside the big square that was
+    // handed to the island.
+    const big = square(0, 0, 10);
+    const island = square(20, 0, 2);
+    const inner = hole(square(4, 4, 2));
+    expect(assignHoles([[big], [island, inner]])).toEqual([[big, inner], [island]]);
+  });
+
+  it('gives a hole to the smallest exterior around it (an island inside a crater inside a ridge)', () => {
+    const ridge = square(0, 0, 20);
+    const crater = hole(square(2, 2, 16));
+    const island = square(5, 5, 10);
+    const islandHole = hole(square(8, 8, 4));
+    expect(assignHoles([[ridge, crater, islandHole], [island]])).toEqual([[ridge, crater], [island, islandHole]]);
   });
 });
 

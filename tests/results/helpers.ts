@@ -81,6 +81,18 @@ export function localAreaOf(coordinates: Position[][][], grid: LocalGrid): numbe
   return area;
 }
 
+/** Total length [m] of the rings of a (Multi)Polygon given in lon/lat, measured in local metres. */
+export function localPerimeterOf(coordinates: Position[][][], grid: LocalGrid): number {
+  let length = 0;
+  for (const polygon of coordinates) {
+    for (const ring of polygon) {
+      const local = ring.map(([lon, lat]) => grid.projection.toLocal(lon, lat));
+      for (let p = 0; p + 1 < local.length; p += 1) length += Math.hypot(local[p + 1][0] - local[p][0], local[p + 1][1] - local[p][1]);
+    }
+  }
+  return length;
+}
+
 /** Round every number in a JSON value, for comparing geometry that may differ in the last bits. */
 export function roundNumbers(value: unknown, decimals: number): unknown {
   if (typeof value === 'number') {
