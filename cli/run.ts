@@ -1,0 +1,206 @@
+/**
+ * `plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]`: load a scenario, run
+ * it, write the result folder (summary.json, receptors.csv, footprint.geojson), and say where the
+ * results went and what the peak is.
+ *
+ * Exit codes: 0 done; 2 invalid input (usage, scenario issues, geometry or weather that cannot be used),
+ * each message naming the option or field; 1 internal failure or a capability this build lacks.
+ */
+import { stat } from 'node:fs/promises';
+import path from 'node:path';
+import { loadScenarioFile } from '../scenario/load.ts';
+import { formatIssues } from '../scenario/schema.ts';
+import type { Scenario, SolverMode } from '../scenario/types.ts';
+import { runScenario, ScenarioInputError } from '../solver/drivers/runScenario.ts';
+import { UnavailableError, type SteadySolver } from '../solver/drivers/solveSteady.ts';
+import type { ScenarioRunResult } from '../solver/drivers/types.ts';
+import { SCREENING_CAUTION } from '../results/caution.ts';
+import { writeResultFolder, type WrittenResultFolder } from '../results/writeResultFolder.ts';
+import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
+import type { CommandIO } from './io.ts';
+import { createProgressReporter } from './progress.ts';
+
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+
+Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
+  summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
+  receptors.csv      one row per receptor, concentrations in ug/m3
+  footprint.geojson  ground-level isopleth bands (WGS 84 lon/lat), lower_ug_m3 and upper_ug_m3
+
+Options:
+  -o, --out DIR      folder for the results (required)
+  -m, --mode MODE    grid (advection-diffusion on the local grid) or gaussian (Gaussian plume
+                     reference); default: the scenario's solver.mode
+  -l, --levels LIST  footprint levels in ug/m3, positive and increasing, e.g. 1,2,5,10;
+                     default: round numbers (1-2-5 series) across the field's range, at most 7
+  -h, --help         show this help
+
+Exit codes: 0 done, 2 invalid input, 1 internal failure.
+Set PLUMEPLAN_DEBUG=1 to see the stack of an internal failure.
+Results are screening estimates only; see the caution in summary.json.
+`;
+
+interface RunArguments {
+  scenarioPath: string;
+  outDirectory: string;
+  mode?: SolverMode;
+  levels_ug_m3?: number[];
+}
+
+export interface RunCommandOptions {
+  /** steady solver to use (a worker-backed one, say); default: in-process */
+  solve?: SteadySolver;
+}
+
+/**
+ * Run `plumeplan run`.
+ *
+ * @param argv the arguments after `run`
+ * @param io streams, environment and clock
+ * @param options the steady solver to use
+ * @returns the exit code
+ * @example await runCommand(['scenarios/merrowdene-heat-plant/scenario.json', '--out', 'out/m'], processIO())
+ */
+export async function runCommand(argv: string[], io: CommandIO, options: RunCommandOptions = {}): Promise<number> {
+  let args: RunArguments | 'help';
+  try {
+    args = readRunArguments(argv);
+  } catch (error) {
+    if (!(error instanceof UsageError)) throw error;
+    io.stderr.write(`plumeplan run: ${error.message}\n\n${RUN_USAGE}`);
+    return 2;
+  }
+  if (args === 'help') {
+    io.stdout.write(RUN_USAGE);
+    return 0;
+  }
+
+  const progress = createProgressReporter(io.stderr, io.now);
+  try {
+    // A folder argument that names a file is caught now, not after a long run.
+    const existing = await stat(args.outDirectory).catch(() => null);
+    if (existing !== null && !existing.isDirectory()) {
+      io.stderr.write(`plumeplan run: --out: ${args.outDirectory} exists and is not a folder; give a folder for the results\n`);
+      return 2;
+    }
+
+    const outcome = await loadScenarioFile(args.scenarioPath);
+    if (!outcome.ok) {
+      const count = outcome.issues.length;
+      io.stderr.write(
+        `plumeplan run: ${args.scenarioPath} is not a valid scenario (${count} ${count === 1 ? 'issue' : 'issues'}):\n` +
+          `${indent(formatIssues(outcome.issues))}\n`,
+      );
+      return 2;
+    }
+    const scenario = outcome.scenario;
+    const mode = args.mode ?? scenario.solver.mode;
+
+    const result = await runScenario(scenario, {
+      mode,
+      solve: options.solve,
+      control: { onProgress: (fraction, message) => progress.update(fraction, message) },
+    });
+    progress.update(1, 'writing the result folder');
+    const written = await writeResultFolder(args.outDirectory, scenario, result, { levels_ug_m3: args.levels_ug_m3 });
+    progress.finish();
+    io.stdout.write(describeRun(scenario, result, written));
+    return 0;
+  } catch (error) {
+    progress.finish();
+    return reportFailure(error, io);
+  }
+}
+
+function readRunArguments(argv: string[]): RunArguments | 'help' {
+  const { options, positionals } = parseCommandLine(argv, {
+    out: { type: 'string', short: 'o' },
+    mode: { type: 'string', short: 'm' },
+    levels: { type: 'string', short: 'l' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (options.help === true) return 'help';
+  if (positionals.length === 0) throw new UsageError('run needs a SCENARIO file');
+  if (positionals.length > 1) {
+    throw new UsageError(`run takes one SCENARIO file; got ${positionals.length}: ${positionals.join(' ')}`);
+  }
+  if (typeof options.out !== 'string' || options.out === '') {
+    throw new UsageError('--out DIR is required: the folder to write the results into');
+  }
+  return {
+    scenarioPath: positionals[0],
+    outDirectory: options.out,
+    mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
+    levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
+  };
+}
+
+/** Exit code and message for an error thrown while running. */
+function reportFailure(error: unknown, io: CommandIO): number {
+  if (error instanceof ScenarioInputError) {
+    io.stderr.write(`plumeplan run: invalid scenario: ${error.message}\n`);
+    return 2;
+  }
+  if (error instanceof UnavailableError) {
+    const suggestion = error.alternativeMode === null ? '' : `; use --mode ${error.alternativeMode} meanwhile`;
+    io.stderr.write(`plumeplan run: ${error.message}${suggestion}\n`);
+    return 1;
+  }
+  const message = error instanceof Error ? error.message : String(error);
+  io.stderr.write(`plumeplan run: internal failure: ${message}\n`);
+  if (io.env.PLUMEPLAN_DEBUG === '1' && error instanceof Error && error.stack !== undefined) {
+    io.stderr.write(`${error.stack}\n`);
+  } else {
+    io.stderr.write('(set PLUMEPLAN_DEBUG=1 to see where it happened)\n');
+  }
+  return 1;
+}
+
+/** What stdout says after a run: where the results went, the peak, the receptors, the caution. */
+export function describeRun(scenario: Scenario, result: ScenarioRunResult, written: WrittenResultFolder): string {
+  const { summary, footprint } = written;
+  const { peak } = summary;
+  const weather = { steady: 'steady weather', hourly: 'hourly series', windRose: 'wind rose' }[result.weatherKind];
+  const statistic = peak.statistic === 'mean' ? 'mean ' : '';
+  const lines = [
+    `${scenario.name}: ${scenario.pollutant.name}, ${result.mode} mode, ${weather}, ` +
+      `grid ${result.grid.nx} x ${result.grid.ny} x ${result.grid.nz} at ${result.grid.spacing_m} m, ` +
+      `${formatSeconds(result.wallSeconds)}`,
+    `Results written to ${path.resolve(written.directory)}: ${written.files.join(', ')}`,
+    `Peak ground-level ${statistic}concentration: ${peak.concentration_ug_m3} ug/m3 at lat ${peak.lat}, lon ${peak.lon} ` +
+      `(${describeOffset(peak.x_m, peak.y_m)} of the site)`,
+  ];
+  if (summary.receptors.length > 0) {
+    const keys = result.receptorColumns.map((column) => column.key);
+    lines.push(`Receptors (${keys.join(', ')}):`);
+    const idWidth = Math.max(...summary.receptors.map((receptor) => receptor.id.length));
+    for (const receptor of summary.receptors) {
+      lines.push(`  ${receptor.id.padEnd(idWidth)}  ${keys.map((key) => receptor[key]).join('  ')}  ${receptor.name}`);
+    }
+  }
+  const levels = footprint.properties.levels_ug_m3;
+  lines.push(
+    levels.length === 0
+      ? 'Footprint: no bands (the field is zero or flat)'
+      : `Footprint bands from ${levels.join(', ')} ug/m3 (the top band open-ended)`,
+  );
+  lines.push(`Caution: ${SCREENING_CAUTION}`);
+  return `${lines.join('\n')}\n`;
+}
+
+function describeOffset(x_m: number, y_m: number): string {
+  const east = `${Math.round(Math.abs(x_m))} m ${x_m < 0 ? 'west' : 'east'}`;
+  const north = `${Math.round(Math.abs(y_m))} m ${y_m < 0 ? 'south' : 'north'}`;
+  return `${east}, ${north}`;
+}
+
+function formatSeconds(seconds: number): string {
+  return seconds < 1 ? `${Math.round(seconds * 1000)} ms` : `${seconds.toFixed(1)} s`;
+}
+
+function indent(text: string): string {
+  return text
+    .split('\n')
+    .map((line) => `  ${line}`)
+    .join('\n');
+}

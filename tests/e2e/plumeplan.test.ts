@@ -1,0 +1,130 @@
+/**
+ * End to end: the installed command (`node bin/plumeplan.mjs`, what `npx plumeplan` runs) on the demo
+ * scenario in Gaussian mode, and its exit codes for help, bad options and a scenario with an error.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { SCREENING_CAUTION } from '../../results/caution.ts';
+
+const ROOT = path.join(import.meta.dirname, '..', '..');
+const BIN = path.join(ROOT, 'bin', 'plumeplan.mjs');
+const DEMO = path.join(ROOT, 'scenarios', 'merrowdene-heat-plant', 'scenario.json');
+const scratch = mkdtempSync(path.join(tmpdir(), 'plumeplan-e2e-'));
+afterAll(() => rmSync(scratch, { recursive: true, force: true }));
+
+function plumeplan(...args: string[]): { status: number | null; stdout: string; stderr: string } {
+  const result = spawnSync(process.execPath, [BIN, ...args], {
+    cwd: ROOT,
+    encoding: 'utf8',
+    env: { ...process.env, PLUMEPLAN_DEBUG: '' },
+  });
+  return { status: result.status, stdout: result.stdout, stderr: result.stderr };
+}
+
+/** A minimal RFC 4180 line split; the demo's names hold no quotes or line breaks. */
+function csvRows(text: string): string[][] {
+  return text
+    .split('\r\n')
+    .filter((line) => line !== '')
+    .map((line) => line.split(','));
+}
+
+describe('plumeplan run on the demo scenario, Gaussian mode', () => {
+  const out = path.join(scratch, 'merrowdene');
+  const scenario = JSON.parse(readFileSync(DEMO, 'utf8'));
+  let run: ReturnType<typeof plumeplan>;
+  beforeAll(() => {
+    run = plumeplan('run', DEMO, '--out', out, '--mode', 'gaussian');
+  });
+
+  it('exits 0 and says where the results went and what the peak is', () => {
+    expect(run.stderr).toBe('');
+    expect(run.status).toBe(0);
+    expect(run.stdout).toContain(`Results written to ${out}: summary.json, receptors.csv, footprint.geojson`);
+    expect(run.stdout).toMatch(/Peak ground-level concentration: \d/);
+  });
+
+  it('writes the three files, each parsing, summary and footprint carrying the caution', () => {
+    for (const name of ['summary.json', 'receptors.csv', 'footprint.geojson']) expect(existsSync(path.join(out, name)), name).toBe(true);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    const footprint = JSON.parse(readFileSync(path.join(out, 'footprint.geojson'), 'utf8'));
+    expect(summary.format).toBe('plumeplan.result/1');
+    expect(summary.mode).toBe('gaussian');
+    expect(summary.caution).toBe(SCREENING_CAUTION);
+    expect(footprint.type).toBe('FeatureCollection');
+    expect(footprint.properties.caution).toBe(SCREENING_CAUTION);
+    expect(footprint.features.length).toBeGreaterThan(0);
+    expect(summary.grid).toMatchObject({ nx: 200, ny: 200, nz: 25, spacing_m: 50 });
+    expect(summary.peak.concentration_ug_m3).toBeGreaterThan(0);
+    // The top band's lower level lies below the peak, so the peak sits in the footprint.
+    const top = footprint.features[footprint.features.length - 1];
+    expect(top.properties.upper_ug_m3).toBeNull();
+    expect(top.properties.lower_ug_m3).toBeLessThan(summary.peak.concentration_ug_m3);
+    // Every source reports its effective height, the stack above its 32 m (plume rise on).
+    const stack = summary.sources.find((source: { id: string }) => source.id === 'boiler-stack');
+    expect(stack.effectiveHeight_m).toBeGreaterThan(32);
+  });
+
+  it('has one receptor row per scenario receptor, in order, with positive concentrations', () => {
+    const rows = csvRows(readFileSync(path.join(out, 'receptors.csv'), 'utf8'));
+    expect(rows[0]).toEqual(['id', 'name', 'lat', 'lon', 'x_m', 'y_m', 'height_m', 'concentration_ug_m3']);
+    const receptors = scenario.receptors as { id: string; name: string; lat: number; lon: number }[];
+    expect(rows.slice(1).map((row) => [row[0], row[1], Number(row[2]), Number(row[3])])).toEqual(
+      receptors.map((receptor) => [receptor.id, receptor.name, receptor.lat, receptor.lon]),
+    );
+    for (const row of rows.slice(1)) expect(Number(row[7])).toBeGreaterThan(0);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    expect(summary.receptors.map((receptor: { id: string }) => receptor.id)).toEqual(receptors.map((receptor) => receptor.id));
+    // summary.json and receptors.csv give the same figure for each receptor.
+    expect(summary.receptors.map((receptor: { concentration_ug_m3: number }) => receptor.concentration_ug_m3)).toEqual(
+      rows.slice(1).map((row) => Number(row[7])),
+    );
+  });
+});
+
+describe('plumeplan exit codes', () => {
+  it.each([[['--help']], [['run', '--help']], [['validate', '--help']], [['run', '-h']], [['validate', '-h']]])(
+    '%j exits 0 with a usage',
+    (argv) => {
+      const run = plumeplan(...argv);
+      expect(run.status).toBe(0);
+      expect(run.stdout).toMatch(/usage:/);
+    },
+  );
+
+  it('a bad --levels exits 2 and names --levels', () => {
+    const run = plumeplan('run', DEMO, '--out', path.join(scratch, 'never'), '--levels', '5,2');
+    expect(run.status).toBe(2);
+    expect(run.stderr).toMatch(/--levels: 2 does not exceed 5/);
+    expect(existsSync(path.join(scratch, 'never'))).toBe(false);
+  });
+
+  it('a scenario with an error exits 2 and names the field', () => {
+    const scenario = JSON.parse(readFileSync(DEMO, 'utf8'));
+    delete scenario.$schema;
+    scenario.receptors[1].lat = 'north of the church';
+    const file = path.join(scratch, 'bad.scenario.json');
+    writeFileSync(file, JSON.stringify(scenario, null, 2));
+    const run = plumeplan('run', file, '--out', path.join(scratch, 'bad-out'), '--mode', 'gaussian');
+    expect(run.status).toBe(2);
+    expect(run.stderr).toMatch(/receptors\[1\]\.lat/);
+    expect(existsSync(path.join(scratch, 'bad-out'))).toBe(false);
+    const validate = plumeplan('validate', file);
+    expect(validate.status).toBe(2);
+    expect(validate.stderr).toMatch(/receptors\[1\]\.lat/);
+  });
+
+  it('validate accepts the demo', () => {
+    const run = plumeplan('validate', DEMO);
+    expect(run.status).toBe(0);
+  });
+
+  it('an unknown command exits 2 with the usage', () => {
+    const run = plumeplan('simulate', DEMO);
+    expect(run.status).toBe(2);
+    expect(run.stderr).toMatch(/unknown command "simulate"/);
+  });
+});
