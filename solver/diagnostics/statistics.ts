@@ -377,3 +377,29 @@ export function standardExceedanceKey(standard: AirQualityStandard): string {
   const slug = standard.name.toLowerCase().replace(/[^a-z0-9]+/g, '_').replace(/^_+|_+$/g, '') || 'standard';
   return `${slug}_exceedances`;
 }
+
+/**
+ * Percentile of a frequency distribution (a wind rose's cells): the smallest value whose cumulative
+ * frequency reaches p / 100 (the nearest-rank definition with weights; a cell of frequency f counts as
+ * f of the time). Frequencies need not sum to 1; they are normalised.
+ *
+ * @param values one value per cell
+ * @param frequencies one frequency per cell, >= 0
+ * @param percentile p in (0, 100]
+ */
+export function weightedPercentile(values: ArrayLike<number>, frequencies: ArrayLike<number>, percentile: number): number {
+  if (values.length !== frequencies.length || values.length === 0) {
+    throw new RangeError(`values (${values.length}) and frequencies (${frequencies.length}) must be non-empty and of one length`);
+  }
+  if (!(percentile > 0 && percentile <= 100)) throw new RangeError(`percentile: ${percentile} is not allowed (0 < p <= 100)`);
+  const order = Array.from({ length: values.length }, (_, i) => i).sort((a, b) => values[a] - values[b]);
+  let total = 0;
+  for (let i = 0; i < frequencies.length; i++) total += frequencies[i];
+  const target = (percentile / 100) * total * (1 - 1e-12);
+  let cumulative = 0;
+  for (const i of order) {
+    cumulative += frequencies[i];
+    if (cumulative >= target && frequencies[i] > 0) return values[i];
+  }
+  return values[order[order.length - 1]];
+}

@@ -658,26 +658,31 @@ export function meanSourceReports(fields: SeriesFields): SourceReport[] {
 
 /**
  * The series' mass budget: each hour's steady budget added up (a reused hour counts its solve's budget;
- * a speed-scaled hour its solve's budget with the airborne terms scaled, the emission unchanged). Null
- * when the solves report none (Gaussian mode).
+ * a speed-scaled hour its solve's budget with the airborne mass scaled, the emission unchanged and the
+ * difference leaving as outflow). With weights (a wind rose's frequencies) the sum is weighted: the
+ * budget of the frequency-weighted mean hour. Null when the solves report none (Gaussian mode).
  */
-export function seriesMassBudget(fields: SeriesFields): MassBudget | null {
-  if (fields.solves.some((s) => s.massBudget_g === null)) return null;
+export function seriesMassBudget(fields: SeriesFields, weights?: Float64Array): MassBudget | null {
+  if (fields.solves.length === 0 || fields.solves.some((s) => s.massBudget_g === null)) return null;
   const total = { emitted: 0, inDomain: 0, decayed: 0, washedOut: 0, dryDeposited: 0, outflow: 0 };
   for (let h = 0; h < fields.solveOfHour.length; h++) {
     const budget = fields.solves[fields.solveOfHour[h]].massBudget_g as MassBudget;
     const scale = fields.scaleOfHour[h];
-    total.emitted += budget.emitted;
+    const weight = weights ? weights[h] : 1;
+    total.emitted += weight * budget.emitted;
     // A scaled hour has no losses (scaling requires none); what is airborne scales, the rest leaves.
-    total.inDomain += budget.inDomain * scale;
-    total.decayed += budget.decayed * scale;
-    total.washedOut += budget.washedOut * scale;
-    total.dryDeposited += budget.dryDeposited * scale;
-    total.outflow += budget.outflow + budget.inDomain * (1 - scale);
+    total.inDomain += weight * budget.inDomain * scale;
+    total.decayed += weight * budget.decayed * scale;
+    total.washedOut += weight * budget.washedOut * scale;
+    total.dryDeposited += weight * budget.dryDeposited * scale;
+    total.outflow += weight * (budget.outflow + budget.inDomain * (1 - scale));
   }
   const sum = total.inDomain + total.decayed + total.washedOut + total.dryDeposited + total.outflow;
+  const basis = fields.solves[0].massBudget_g?.basis ?? '';
   return {
-    basis: `sum over ${fields.solveOfHour.length} hours of each hour's steady budget (${fields.solves[0]?.massBudget_g?.basis ?? ''})`,
+    basis: weights
+      ? `frequency-weighted sum over ${fields.solveOfHour.length} wind-rose cells of each cell's steady budget (${basis})`
+      : `sum over ${fields.solveOfHour.length} hours of each hour's steady budget (${basis})`,
     ...total,
     relativeImbalance: total.emitted > 0 ? (total.emitted - sum) / total.emitted : 0,
   };

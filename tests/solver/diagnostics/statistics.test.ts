@@ -164,3 +164,19 @@ describe('column keys', () => {
     expect(standardExceedanceKey({ name: 'PM10 24-h (EU)', limit_ug_m3: 50, averaging_h: 24, allowedExceedances: 35 })).toBe('pm10_24_h_eu_exceedances');
   });
 });
+
+describe('weighted percentile (frequency distribution of a wind rose)', () => {
+  it('is the nearest-rank percentile when every weight is equal', async () => {
+    const { weightedPercentile } = await import('../../../solver/diagnostics/statistics.ts');
+    const values = Float64Array.from({ length: 200 }, (_, i) => (i * 7919) % 200);
+    const weights = new Float64Array(200).fill(1 / 200);
+    for (const p of [50, 90.41, 99.5, 100]) expect(weightedPercentile(values, weights, p)).toBe(percentileNearestRank(values, p));
+  });
+  it('takes the value where the cumulative frequency reaches p', async () => {
+    const { weightedPercentile } = await import('../../../solver/diagnostics/statistics.ts');
+    // 90 % of the time 1, 9.9 % 5, 0.1 % 100: 99.79th -> 5, 99.95th -> 100
+    expect(weightedPercentile([5, 1, 100], [0.099, 0.9, 0.001], 99.79)).toBe(5);
+    expect(weightedPercentile([5, 1, 100], [0.099, 0.9, 0.001], 99.95)).toBe(100);
+    expect(weightedPercentile([5, 1, 100], [0.099, 0.9, 0.001], 50)).toBe(1);
+  });
+});
