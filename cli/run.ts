@@ -171,12 +171,7 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
       `(${describeOffset(peak.x_m, peak.y_m)} of the site)`,
   ];
   if (summary.receptors.length > 0) {
-    const keys = result.receptorColumns.map((column) => column.key);
-    lines.push(`Receptors (${keys.join(', ')}):`);
-    const idWidth = Math.max(...summary.receptors.map((receptor) => receptor.id.length));
-    for (const receptor of summary.receptors) {
-      lines.push(`  ${receptor.id.padEnd(idWidth)}  ${keys.map((key) => receptor[key]).join('  ')}  ${receptor.name}`);
-    }
+    lines.push('Receptors:', ...receptorTable(summary.receptors, result.receptorColumns.map((column) => column.key)));
   }
   const levels = footprint.properties.levels_ug_m3;
   lines.push(
@@ -186,6 +181,16 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
   );
   lines.push(`Caution: ${SCREENING_CAUTION}`);
   return `${lines.join('\n')}\n`;
+}
+
+/** The receptors as an aligned table: id, the figure columns (their names as headers), the name. */
+function receptorTable(receptors: WrittenResultFolder['summary']['receptors'], keys: string[]): string[] {
+  const header = ['id', ...keys, 'name'];
+  const rows = receptors.map((receptor) => [receptor.id, ...keys.map((key) => String(receptor[key])), receptor.name]);
+  const widths = header.map((title, column) => Math.max(title.length, ...rows.map((row) => row[column].length)));
+  const format = (row: string[]): string =>
+    `  ${row.map((cell, column) => (column === row.length - 1 ? cell : cell.padEnd(widths[column]))).join('  ')}`;
+  return [format(header), ...rows.map(format)];
 }
 
 function describeOffset(x_m: number, y_m: number): string {

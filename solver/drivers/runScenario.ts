@@ -6,6 +6,7 @@
 import type { Scenario, SolverMode } from '../../scenario/types.ts';
 import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
+import { runHourlySeries, type SeriesBaseInput } from './hourlySeries.ts';
 import { UnavailableError, type SteadySolver } from './solveSteady.ts';
 import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
 import type { RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
@@ -42,12 +43,27 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const control = options.control ?? {};
   control.onProgress?.(0, 'preparing the grid');
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
-  const domainSummary = { ...geometry.domain, derived: geometry.domainDerived };
+  // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
+  try {
+    return await dispatchByWeather(scenario, geometry, mode, control, options.solve);
+  } catch (error) {
+    if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
+    throw error;
+  }
+}
 
+async function dispatchByWeather(
+  scenario: Scenario,
+  geometry: ScenarioGeometry,
+  mode: SolverMode,
+  control: RunControl,
+  solve: SteadySolver | undefined,
+): Promise<ScenarioRunResult> {
+  const domainSummary = { ...geometry.domain, derived: geometry.domainDerived };
   const weather = scenario.weather;
   switch (weather.kind) {
     case 'steady': {
-      const resolution = asInputError(() => resolveWeatherWithSource(weather, scenario.site, 'weather'));
+      const resolution = resolveWeatherWithSource(weather, scenario.site, 'weather');
       const input = steadyInput(scenario, geometry, resolution.weather);
       const weatherSummary: Record<string, unknown> = {
         kind: 'steady',
@@ -64,15 +80,43 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
             'series or a wind rose, which give the statistics each standard is defined by',
         };
       }
-      return runSteadyScenario(input, { mode, control, solve: options.solve, extraSummary });
+      return runSteadyScenario(input, { mode, control, solve, extraSummary });
     }
-    case 'hourly':
-      throw new UnavailableError('weather.kind "hourly": hourly series arrive with the weather work and are not available in this build yet');
+    case 'hourly': {
+      if (scenario.solver.hourlyMethod === 'continuous' && mode === 'grid') {
+        throw new UnavailableError(
+          'solver.hourlyMethod "continuous": the continuous time-march arrives with the grid solver and is not available in this build yet; "independentHours" is',
+        );
+      }
+      return runHourlySeries(seriesBaseInput(scenario, geometry), weather.hours, {
+        mode,
+        method: scenario.solver.hourlyMethod,
+        site: scenario.site,
+        assessment: scenario.assessment,
+        control,
+        solve,
+        extraSummary: { domain: domainSummary },
+      });
+    }
     case 'windRose':
       throw new UnavailableError('weather.kind "windRose": wind roses arrive with the weather work and are not available in this build yet');
     default:
       throw new ScenarioInputError(`weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)} is not a weather kind`);
   }
+}
+
+/** Everything a steady solve needs except the weather (what a series runs every hour with). */
+export function seriesBaseInput(scenario: Scenario, geometry: ScenarioGeometry): SeriesBaseInput {
+  return {
+    grid: geometry.grid,
+    sources: geometry.sources,
+    receptors: geometry.receptors,
+    pollutant: scenario.pollutant,
+    dispersion: scenario.dispersion,
+    landUse: scenario.site.landUse,
+    windProfile: scenario.windProfile,
+    groundLevelHeight_m: GROUND_LEVEL_HEIGHT_m,
+  };
 }
 
 /** The steady solve's input for one resolved weather state. */
@@ -81,17 +125,7 @@ export function steadyInput(
   geometry: ScenarioGeometry,
   weather: SteadyRunInput['weather'],
 ): SteadyRunInput {
-  return {
-    grid: geometry.grid,
-    sources: geometry.sources,
-    receptors: geometry.receptors,
-    pollutant: scenario.pollutant,
-    weather,
-    dispersion: scenario.dispersion,
-    landUse: scenario.site.landUse,
-    windProfile: scenario.windProfile,
-    groundLevelHeight_m: GROUND_LEVEL_HEIGHT_m,
-  };
+  return { ...seriesBaseInput(scenario, geometry), weather };
 }
 
 /** RangeErrors from geometry and weather name a field of the scenario: they are input errors. */

@@ -82,7 +82,43 @@ describe('runScenario, steady weather', () => {
   });
 });
 
+describe('runScenario, hourly series', () => {
+  it('dispatches to the hourly driver: mean footprint, mean and max columns, standards by name', async () => {
+    const scenario = smallDemo((raw) => {
+      const { kind: _kind, ...fields } = raw.weather;
+      raw.weather = {
+        kind: 'hourly',
+        hours: [0, 1, 2].map((hour) => ({ ...fields, time: `2026-03-02T0${hour}:00:00+00:00`, windFrom_deg: 240 + 10 * hour })),
+      };
+    });
+    const result = await runScenario(scenario, { mode: 'gaussian' });
+    expect(result.weatherKind).toBe('hourly');
+    expect(result.footprintStatistic).toBe('mean');
+    const keys = result.receptorColumns.map((column) => column.key);
+    expect(keys.slice(0, 2)).toEqual(['mean_ug_m3', 'max_ug_m3']);
+    expect(keys.some((key) => key.startsWith('no2_1_hour_mean'))).toBe(true);
+    expect(result.extraSummary).toHaveProperty('domain.derived', false);
+    // The mean never exceeds the hourly maximum at any receptor.
+    const [mean, max] = result.receptorColumns;
+    mean.values.forEach((value, index) => expect(value).toBeLessThanOrEqual(max.values[index]));
+  });
+});
+
 describe('runScenario, what this build does not have yet', () => {
+  it('a wind rose is unavailable until its driver lands', async () => {
+    const scenario = smallDemo((raw) => {
+      raw.weather = {
+        kind: 'windRose',
+        sectorWidth_deg: 90,
+        cells: [0, 90, 180, 270].map((windFrom_deg) => ({ windFrom_deg, windSpeed_m_s: 5, stability: 'D', frequency: 0.25 })),
+        rain_mm_h: 0,
+        airTemperature_K: 283.15,
+        anemometerHeight_m: 10,
+      };
+    });
+    await expect(runScenario(scenario, { mode: 'gaussian' })).rejects.toBeInstanceOf(UnavailableError);
+  });
+
   it('grid mode is unavailable until the grid solver lands, and suggests the Gaussian mode', async () => {
     const attempt = runScenario(smallDemo(), { mode: 'grid' });
     await expect(attempt).rejects.toBeInstanceOf(UnavailableError);
