@@ -7,6 +7,7 @@ import type { Scenario, SolverMode } from '../../scenario/types.ts';
 import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { runHourlySeries, type SeriesBaseInput } from './hourlySeries.ts';
+import { runWindRose } from './windRose.ts';
 import { UnavailableError, type SteadySolver } from './solveSteady.ts';
 import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
 import type { RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
@@ -99,7 +100,14 @@ async function dispatchByWeather(
       });
     }
     case 'windRose':
-      throw new UnavailableError('weather.kind "windRose": wind roses arrive with the weather work and are not available in this build yet');
+      return runWindRose(seriesBaseInput(scenario, geometry), weather, {
+        mode,
+        site: scenario.site,
+        assessment: scenario.assessment,
+        control,
+        solve,
+        extraSummary: { domain: domainSummary },
+      });
     default:
       throw new ScenarioInputError(`weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)} is not a weather kind`);
   }

@@ -104,8 +104,8 @@ describe('runScenario, hourly series', () => {
   });
 });
 
-describe('runScenario, what this build does not have yet', () => {
-  it('a wind rose is unavailable until its driver lands', async () => {
+describe('runScenario, wind rose', () => {
+  it('dispatches to the wind-rose driver: mean footprint, mean and max columns', async () => {
     const scenario = smallDemo((raw) => {
       raw.weather = {
         kind: 'windRose',
@@ -116,9 +116,14 @@ describe('runScenario, what this build does not have yet', () => {
         anemometerHeight_m: 10,
       };
     });
-    await expect(runScenario(scenario, { mode: 'gaussian' })).rejects.toBeInstanceOf(UnavailableError);
+    const result = await runScenario(scenario, { mode: 'gaussian' });
+    expect(result.weatherKind).toBe('windRose');
+    expect(result.footprintStatistic).toBe('mean');
+    expect(result.receptorColumns.map((column) => column.key).slice(0, 2)).toEqual(['mean_ug_m3', 'max_ug_m3']);
   });
+});
 
+describe('runScenario, what this build does not have yet', () => {
   it('grid mode is unavailable until the grid solver lands, and suggests the Gaussian mode', async () => {
     const attempt = runScenario(smallDemo(), { mode: 'grid' });
     await expect(attempt).rejects.toBeInstanceOf(UnavailableError);
