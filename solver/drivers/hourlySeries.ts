@@ -67,6 +67,8 @@ export interface SeriesRunOptions {
   speedScaling?: boolean;
   /** caption of the wind-rose picture (default: the basis of the table) */
   windRoseCaption?: string;
+  /** distinct solves in flight at once (default 1; more only helps a worker-backed solver) */
+  concurrency?: number;
 }
 
 /** One continuous time-march over a series, supplied by the grid solver (see gridTransient.ts). */
@@ -180,6 +182,8 @@ function storeSolve(result: SteadyFieldResult, windSpeed_m_s: number): StoredSol
 
 /**
  * Solve a list of weather states with exact reuse (shared by hourly series and wind roses).
+ * The distinct states are found first, then solved in order, up to `concurrency` at a time (useful
+ * when the solver hands solves to worker threads; the in-process solver runs one at a time anyway).
  *
  * @returns the stored solves and, for each state, which solve and what scale gives its field
  */
@@ -187,42 +191,66 @@ export async function solveWithReuse(
   base: SeriesBaseInput,
   states: readonly ResolvedWeather[],
   mode: SolverMode,
-  options: { solve: SteadySolver; rules: ReuseRules; control: RunControl; label: string },
+  options: { solve: SteadySolver; rules: ReuseRules; control: RunControl; label: string; concurrency?: number },
 ): Promise<SeriesFields> {
   const { solve, rules, control, label } = options;
   const hasWashout = base.pollutant.washout !== null;
-  const solves: StoredSolve[] = [];
   const byKey = new Map<string, number>();
   const solveOfHour = new Int32Array(states.length);
   const scaleOfHour = new Float64Array(states.length);
-  let identicalReuses = 0;
-  let scaledReuses = 0;
-  const innerControl: RunControl = control.signal ? { signal: control.signal } : {};
+  const firstStateOfSolve: number[] = [];
+  const scaledHour = new Uint8Array(states.length);
   for (let h = 0; h < states.length; h++) {
-    control.signal?.throwIfAborted();
-    const weather = states[h];
-    const { key, scaled } = reuseKey(weather, rules, hasWashout);
+    const { key, scaled } = reuseKey(states[h], rules, hasWashout);
     let index = byKey.get(key);
     if (index === undefined) {
-      index = solves.length;
-      const result = await solve({ ...base, weather }, mode, innerControl);
-      checkShapes(base, result);
-      solves.push(storeSolve(result, weather.windSpeed_m_s));
+      index = firstStateOfSolve.length;
       byKey.set(key, index);
-      scaleOfHour[h] = 1;
-    } else {
-      const stored = solves[index];
-      if (scaled && stored.windSpeed_m_s !== weather.windSpeed_m_s) {
-        scaleOfHour[h] = stored.windSpeed_m_s / weather.windSpeed_m_s;
-        scaledReuses++;
-      } else {
-        scaleOfHour[h] = 1;
-        identicalReuses++;
-      }
+      firstStateOfSolve.push(h);
     }
     solveOfHour[h] = index;
-    if (h % 24 === 0 || h === states.length - 1) {
-      control.onProgress?.((h + 1) / states.length, `${label} ${h + 1} of ${states.length} (${solves.length} solves)`);
+    scaledHour[h] = scaled ? 1 : 0;
+  }
+
+  const solves: StoredSolve[] = new Array(firstStateOfSolve.length);
+  const innerControl: RunControl = control.signal ? { signal: control.signal } : {};
+  const concurrency = Math.max(1, Math.floor(options.concurrency ?? 1));
+  let next = 0;
+  let done = 0;
+  const worker = async () => {
+    while (next < firstStateOfSolve.length) {
+      control.signal?.throwIfAborted();
+      const index = next++;
+      const weather = states[firstStateOfSolve[index]];
+      const result = await solve({ ...base, weather }, mode, innerControl);
+      checkShapes(base, result);
+      solves[index] = storeSolve(result, weather.windSpeed_m_s);
+      done++;
+      if (done % 8 === 0 || done === firstStateOfSolve.length) {
+        control.onProgress?.(
+          done / firstStateOfSolve.length,
+          `${label}s: ${done} of ${firstStateOfSolve.length} distinct solves (${states.length} ${label}s)`,
+        );
+      }
+    }
+  };
+  await Promise.all(Array.from({ length: Math.min(concurrency, firstStateOfSolve.length) }, worker));
+
+  let identicalReuses = 0;
+  let scaledReuses = 0;
+  for (let h = 0; h < states.length; h++) {
+    const index = solveOfHour[h];
+    if (firstStateOfSolve[index] === h) {
+      scaleOfHour[h] = 1;
+      continue;
+    }
+    const stored = solves[index];
+    if (scaledHour[h] === 1 && stored.windSpeed_m_s !== states[h].windSpeed_m_s) {
+      scaleOfHour[h] = stored.windSpeed_m_s / states[h].windSpeed_m_s;
+      scaledReuses++;
+    } else {
+      scaleOfHour[h] = 1;
+      identicalReuses++;
     }
   }
   return { solves, solveOfHour, scaleOfHour, identicalReuses, scaledReuses };
@@ -532,6 +560,7 @@ export async function runHourlySeries(
       rules,
       control,
       label: 'hour',
+      concurrency: options.concurrency,
     });
     values = hourlyValuesFromFields(fields);
     steps = fields.solves.reduce((sum, s) => sum + s.steps, 0);

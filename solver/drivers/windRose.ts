@@ -89,6 +89,7 @@ export async function runWindRose(
     rules,
     control,
     label: 'wind-rose cell',
+    concurrency: options.concurrency,
   });
   const cells = states.length;
   const receptorCount = base.receptors.length;
