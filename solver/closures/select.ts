@@ -3,6 +3,7 @@
  */
 import type { Dispersion, LandUse } from '../../scenario/types.ts';
 import { ConstantDiffusivity } from './constantDiffusivity.ts';
+import { createStabilityDiffusivity } from './stabilityDiffusivity.ts';
 import type { DiffusivityClosure } from './types.ts';
 
 /**
@@ -16,11 +17,7 @@ export function closureFor(dispersion: Dispersion, landUse: LandUse): Diffusivit
     return new ConstantDiffusivity(dispersion.horizontal_m2_s, dispersion.vertical_m2_s);
   }
   if (dispersion.kind === 'stability') {
-    void landUse;
-    throw new Error(
-      'dispersion.kind "stability": the stability-dependent diffusivity closure is not yet available in grid mode; ' +
-        'use dispersion.kind "constant" or --mode gaussian',
-    );
+    return createStabilityDiffusivity(landUse);
   }
   throw new RangeError(
     `dispersion.kind is ${JSON.stringify((dispersion as { kind: unknown }).kind)}; allowed: "stability" or "constant"`,
