@@ -6,11 +6,12 @@
 import type { Scenario, SolverMode } from '../../scenario/types.ts';
 import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
-import { runHourlySeries, type SeriesBaseInput } from './hourlySeries.ts';
+import { createGridTransient, marchGridPeriod } from './gridTransient.ts';
+import { runHourlySeries, type ContinuousSeriesRunner, type SeriesBaseInput } from './hourlySeries.ts';
 import { runWindRose } from './windRose.ts';
-import { UnavailableError, type SteadySolver } from './solveSteady.ts';
+import type { SteadySolver } from './solveSteady.ts';
 import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
-import type { RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
+import type { MassBudget, RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
 
 /**
  * Input the scenario file passed its schema with but that cannot be run as given (a source outside the
@@ -36,7 +37,6 @@ export interface RunScenarioOptions {
  * @param options mode override, progress and cancellation, steady solver
  * @returns the result for the writers (summary.json, receptors.csv, footprint.geojson)
  * @throws ScenarioInputError naming the field when the geometry or the weather cannot be used
- * @throws UnavailableError for a capability not in this build (grid mode before the solver lands)
  * @example const result = await runScenario(scenario, { mode: 'gaussian' });
  */
 export async function runScenario(scenario: Scenario, options: RunScenarioOptions = {}): Promise<ScenarioRunResult> {
@@ -84,14 +84,10 @@ async function dispatchByWeather(
       return runSteadyScenario(input, { mode, control, solve, extraSummary });
     }
     case 'hourly': {
-      if (scenario.solver.hourlyMethod === 'continuous' && mode === 'grid') {
-        throw new UnavailableError(
-          'solver.hourlyMethod "continuous": the continuous time-march arrives with the grid solver and is not available in this build yet; "independentHours" is',
-        );
-      }
       return runHourlySeries(seriesBaseInput(scenario, geometry), weather.hours, {
         mode,
         method: scenario.solver.hourlyMethod,
+        continuous: continuousGridSeries,
         site: scenario.site,
         assessment: scenario.assessment,
         control,
@@ -112,6 +108,55 @@ async function dispatchByWeather(
       throw new ScenarioInputError(`weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)} is not a weather kind`);
   }
 }
+
+/** One hour [s]: an hourly record's period. */
+const HOUR_s = 3600;
+
+/**
+ * The continuous method of an hourly series in grid mode: one time-march from an empty domain, the field
+ * carried over from hour to hour, each hour's value its mean over the hour. A gap in the series is
+ * marched through with the weather of the hour before it, unrecorded, so the field arriving at the next
+ * hour has aged by the right time (stated in the notes).
+ */
+export const continuousGridSeries: ContinuousSeriesRunner = async (base, hours, hourStarts_ms, control, onHour) => {
+  const run = createGridTransient(base, hours[0]);
+  let steps = 0;
+  let bridged_h = 0;
+  let massBudget: MassBudget | null = null;
+  const heightSums = new Float64Array(base.sources.length);
+  let firstNote: string | null = null;
+  for (let h = 0; h < hours.length; h += 1) {
+    control.signal?.throwIfAborted();
+    if (h > 0) {
+      const gap_h = Math.round((hourStarts_ms[h] - hourStarts_ms[h - 1]) / (HOUR_s * 1000)) - 1;
+      if (gap_h > 0) {
+        steps += marchGridPeriod(run, hours[h - 1], gap_h * HOUR_s, { signal: control.signal }).steps;
+        bridged_h += gap_h;
+      }
+    }
+    const period = marchGridPeriod(run, hours[h], HOUR_s, { signal: control.signal });
+    steps += period.steps;
+    massBudget = period.massBudget_g;
+    period.effectiveHeights_m.forEach((height, n) => (heightSums[n] += height));
+    firstNote ??= period.notes[0] ?? null;
+    onHour(h, period.receptorsMean_ug_m3, period.groundLevelMean_ug_m3);
+    control.onProgress?.((h + 1) / hours.length, `hour ${h + 1} of ${hours.length}`);
+  }
+  const notes = [`grid mode, continuous time-march of ${hours.length} hours from an empty domain, ${steps} steps in all`];
+  if (firstNote !== null) notes.push(`first hour: ${firstNote}`);
+  if (bridged_h > 0) notes.push(`${bridged_h} missing hours marched through with the weather of the hour before each gap, not recorded`);
+  return {
+    steps,
+    massBudget_g: massBudget,
+    sources: base.sources.map((source, n) => ({
+      id: source.id,
+      x_m: source.x_m,
+      y_m: source.y_m,
+      effectiveHeight_m: heightSums[n] / hours.length,
+    })),
+    notes,
+  };
+};
 
 /** Everything a steady solve needs except the weather (what a series runs every hour with). */
 export function seriesBaseInput(scenario: Scenario, geometry: ScenarioGeometry): SeriesBaseInput {

@@ -5,6 +5,7 @@
  */
 import type { SolverMode } from '../../scenario/types.ts';
 import { runGaussianSteady } from './gaussianSteady.ts';
+import { solveGridSteady } from './gridSteady.ts';
 import type { RunControl, SteadyFieldResult, SteadyRunInput } from './types.ts';
 
 /** The shape of a steady solver; `solveSteady` is the in-process one. */
@@ -31,7 +32,6 @@ export class UnavailableError extends Error {
  * @param mode "grid" (advection-diffusion) or "gaussian" (the Gaussian plume reference)
  * @param control progress callback and abort signal, passed on to the solver
  * @returns the ground-level field and receptor values [ug/m3] with the run's figures
- * @throws UnavailableError for grid mode until the grid solver is part of the build
  * @throws RangeError for a mode that is neither
  * @example const field = await solveSteady(input, 'gaussian');
  */
@@ -45,10 +45,7 @@ export async function solveSteady(
     case 'gaussian':
       return runGaussianSteady(input, control);
     case 'grid':
-      throw new UnavailableError(
-        'grid mode (the advection-diffusion solver) arrives with the solver and is not available in this build yet',
-        'gaussian',
-      );
+      return solveGridSteady(input, control);
     default:
       throw new RangeError(`solver.mode: ${JSON.stringify(mode)} is not a mode; allowed: "grid" or "gaussian"`);
   }
