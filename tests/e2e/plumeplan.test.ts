@@ -85,6 +85,27 @@ describe('plumeplan run on the demo scenario, Gaussian mode', () => {
   });
 });
 
+describe('plumeplan run without --mode: grid mode by default', () => {
+  it('solves on the grid and writes a mass budget (a smaller copy of the demo, 40 x 40 x 10 cells)', () => {
+    const scenario = JSON.parse(readFileSync(DEMO, 'utf8'));
+    delete scenario.$schema;
+    scenario.domain = { halfWidth_m: 3000, spacing_m: 150, height_m: 1000, layers: 10 };
+    const file = path.join(scratch, 'small.scenario.json');
+    writeFileSync(file, JSON.stringify(scenario, null, 2));
+    const out = path.join(scratch, 'small-grid');
+    const run = plumeplan('run', file, '--out', out);
+    expect(run.status).toBe(0);
+    expect(run.stdout).toContain('grid mode, steady weather, grid 40 x 40 x 10 at 150 m');
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    expect(summary.mode).toBe('grid');
+    expect(Object.keys(summary.massBudget_g).sort()).toEqual(
+      ['basis', 'decayed', 'dryDeposited', 'emitted', 'inDomain', 'outflow', 'relativeImbalance', 'washedOut'],
+    );
+    expect(summary.run.steps).toBeGreaterThan(0);
+    expect(summary.peak.concentration_ug_m3).toBeGreaterThan(0);
+  });
+});
+
 describe('plumeplan exit codes', () => {
   it.each([[['--help']], [['run', '--help']], [['validate', '--help']], [['run', '-h']], [['validate', '-h']]])(
     '%j exits 0 with a usage',
