@@ -174,11 +174,9 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
     lines.push('Receptors:', ...receptorTable(summary.receptors, result.receptorColumns.map((column) => column.key)));
   }
   const levels = footprint.properties.levels_ug_m3;
-  lines.push(
-    levels.length === 0
-      ? 'Footprint: no bands (the field is zero or flat)'
-      : `Footprint bands from ${levels.join(', ')} ug/m3 (the top band open-ended)`,
-  );
+  if (levels.length === 0) lines.push('Footprint: no bands (the field is zero or flat)');
+  else if (footprint.features.length === 0) lines.push(`Footprint: no ground reaches the lowest level, ${levels[0]} ug/m3`);
+  else lines.push(`Footprint bands from ${levels.join(', ')} ug/m3 (the top band open-ended)`);
   lines.push(`Caution: ${SCREENING_CAUTION}`);
   return `${lines.join('\n')}\n`;
 }

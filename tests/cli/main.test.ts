@@ -109,6 +109,12 @@ describe('run', () => {
     expect(summary.footprint.levels_ug_m3).toEqual([1, 2, 5]);
   });
 
+  it('says so when no ground reaches the lowest level given', async () => {
+    const run = capture();
+    expect(await main(['run', smallDemo(), '--out', path.join(scratch, 'out-high'), '--mode', 'gaussian', '--levels', '1e6'], run.io)).toBe(0);
+    expect(run.stdout()).toContain('Footprint: no ground reaches the lowest level, 1000000 ug/m3');
+  });
+
   it('exits 2 naming the field for a scenario with an error', async () => {
     const file = smallDemo((scenario) => {
       scenario.sources[0].emission_g_s = -1;
