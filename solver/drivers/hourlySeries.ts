@@ -717,15 +717,22 @@ export function seriesMassBudget(fields: SeriesFields, weights?: Float64Array): 
   };
 }
 
-/** Notes of the solves, each once, with how many solves gave it. */
+/**
+ * Notes of the solves for the series' notes: every note that all solves share, once; of the notes that
+ * vary from solve to solve (sweep counts, plume-rise figures), how many there were and the first few
+ * as examples, so a year of solves does not bury the result in thousands of near-identical lines.
+ */
 export function distinctNotes(solves: readonly StoredSolve[]): string[] {
   const counts = new Map<string, number>();
-  for (const solve of solves) for (const note of solve.notes) counts.set(note, (counts.get(note) ?? 0) + 1);
-  const out: string[] = [];
-  for (const [note, count] of counts) {
-    // per-solve details such as a plume rise figure vary by hour; keep the first few only
-    if (out.length >= 40) break;
-    out.push(count === solves.length ? note : `${note} (${count} of ${solves.length} solves)`);
+  for (const solve of solves) for (const note of new Set(solve.notes)) counts.set(note, (counts.get(note) ?? 0) + 1);
+  const shared: string[] = [];
+  const varying: string[] = [];
+  for (const [note, count] of counts) (count === solves.length ? shared : varying).push(note);
+  const EXAMPLES = 3;
+  if (varying.length > 0) {
+    shared.push(
+      `${varying.length} further notes vary from solve to solve; for example: ` + varying.slice(0, EXAMPLES).map((n) => `"${n}"`).join('; '),
+    );
   }
-  return out;
+  return shared;
 }
