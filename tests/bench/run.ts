@@ -1,0 +1,176 @@
+/**
+ * `npm run bench`: plumeplan's speed figures, one JSON object per line on stdout, each with a `name`.
+ *
+ * - transport-step: one full transport step (advection x/y, horizontal diffusion, implicit vertical
+ *   diffusion with deposition, loss, budget) on 100x100x20, 200x200x30 and 400x400x30, 1 and 2 threads,
+ *   best and median of several timed repeats, each side by side with the numpy peer
+ *   (../shared/bench/numpy_peer.py) on the same grid in the same run, and the ratio ours / peer;
+ * - memory-bandwidth: an in-process triad a = b + s c over Float64Arrays, and the fraction of it the
+ *   transport step reaches given its bytes moved per cell-step;
+ * - steady-solve: the demo scenario's steady grid solve (scenarios/merrowdene-heat-plant), wall time,
+ *   sweeps and budget imbalance; and the same state by plain time stepping for comparison.
+ * Figures are what this machine measured in this run; nothing here fails for being slow.
+ */
+import { execFileSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import { loadScenarioFile } from '../../scenario/load.ts';
+import { ConstantDiffusivity } from '../../solver/closures/constantDiffusivity.ts';
+import { solveGridSteadyDetailed } from '../../solver/drivers/gridSteady.ts';
+import { createDispersionModel, setInitialField } from '../../solver/drivers/model.ts';
+import { steadyInput } from '../../solver/drivers/runScenario.ts';
+import { paddedToGridOrder } from '../../solver/fields/paddedLayout.ts';
+import { prepareScenarioGeometry } from '../../solver/grid/scenarioGeometry.ts';
+import { FirstOrderDecay } from '../../solver/losses/firstOrderLosses.ts';
+import { resolveWeather } from '../../solver/meteorology/resolveWeather.ts';
+import { SlabPoolExecutor } from '../../solver/parallel/slabPool.ts';
+import { advanceOneStep, SerialStepExecutor, type StepExecutor } from '../../solver/timestepping/timeStepper.ts';
+import { uniformColumnWind } from '../../solver/wind/columnWind.ts';
+import { testGrid } from '../solver/verification/testGrid.ts';
+
+/** Main-memory bytes a transport step moves per cell: read + write in the pass up, read + write in the pass down. */
+const KERNEL_BYTES_PER_CELL_STEP = 32;
+const PEER = new URL('../../../shared/bench/numpy_peer.py', import.meta.url).pathname;
+const DEMO = new URL('../../scenarios/merrowdene-heat-plant/scenario.json', import.meta.url).pathname;
+
+function print(record: Record<string, unknown>): void {
+  process.stdout.write(`${JSON.stringify(record)}\n`);
+}
+
+function numpyPeer(nx: number, ny: number, nz: number): number | null {
+  try {
+    const output = execFileSync('/usr/bin/python3', [PEER, String(nx), String(ny), String(nz)], { encoding: 'utf8', timeout: 300_000 });
+    const match = /numpy peer: ([0-9.]+) M cell-steps\/s/.exec(output);
+    return match ? Number(match[1]) * 1e6 : null;
+  } catch {
+    return null;
+  }
+}
+
+function seededRandom(seed: number): () => number {
+  let state = seed >>> 0;
+  return () => {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+    return state / 4294967296;
+  };
+}
+
+/** Cell-steps per second of the transport step: best and median of `repeats` timings of `steps` steps. */
+async function transportStep(nx: number, ny: number, nz: number, threads: number, verticalVelocity_m_s = 0): Promise<{ best: number; median: number; timeStep_s: number }> {
+  // The peer's settings: wind (4, 1.5) m/s, 50 m cells, 20 m layers, K = 10 m2/s horizontal, 5 vertical,
+  // loss 1e-4 1/s, a random field in [0, 1).
+  const grid = testGrid({ nx, ny, nz, height_m: 20 * nz, spacing_m: 50 });
+  const speed = Math.hypot(4, 1.5);
+  const from_deg = (Math.atan2(-4, -1.5) * 180) / Math.PI;
+  const model = createDispersionModel({
+    grid,
+    wind: uniformColumnWind(grid, speed, from_deg, { verticalVelocity_m_s }),
+    closure: new ConstantDiffusivity(10, 5),
+    losses: [FirstOrderDecay(1e-4)],
+    sharedMemory: threads > 1,
+  });
+  const random = seededRandom(12345);
+  setInitialField(model, Float64Array.from({ length: nx * ny * nz }, random));
+  let executor: StepExecutor = new SerialStepExecutor();
+  if (threads > 1) {
+    const pool = await SlabPoolExecutor.create(threads);
+    await pool.prepare(model);
+    executor = pool;
+  }
+  const cells = nx * ny * nz;
+  const steps = Math.max(3, Math.round(6e7 / cells / 4));
+  for (let n = 0; n < 3; n++) advanceOneStep(model, model.timeStep_s, executor);
+  const rates: number[] = [];
+  for (let repeat = 0; repeat < 7; repeat++) {
+    const started = performance.now();
+    for (let n = 0; n < steps; n++) advanceOneStep(model, model.timeStep_s, executor);
+    rates.push((cells * steps) / ((performance.now() - started) / 1000));
+  }
+  await executor.close();
+  rates.sort((a, b) => a - b);
+  return { best: rates[rates.length - 1], median: rates[rates.length >> 1], timeStep_s: model.timeStep_s };
+}
+
+function triadBandwidth_bytes_s(): number {
+  const length = 8 * 1024 * 1024; // 64 MiB per array, well beyond the caches
+  const a = new Float64Array(length);
+  const b = new Float64Array(length).fill(1);
+  const c = new Float64Array(length).fill(2);
+  let best = 0;
+  for (let repeat = 0; repeat < 8; repeat++) {
+    const scale = 1 + repeat * 1e-3;
+    const started = performance.now();
+    for (let n = 0; n < length; n++) a[n] = b[n] + scale * c[n];
+    const seconds = (performance.now() - started) / 1000;
+    best = Math.max(best, (24 * length) / seconds); // two reads and one write of 8 bytes
+  }
+  if (a[length - 1] < 0) print({ name: 'never' });
+  return best;
+}
+
+async function main(): Promise<void> {
+  const figures = new Map<string, number>();
+  for (const [nx, ny, nz] of [[100, 100, 20], [200, 200, 30], [400, 400, 30]] as const) {
+    const grid = `${nx}x${ny}x${nz}`;
+    const peer = numpyPeer(nx, ny, nz);
+    for (const threads of [1, 2]) {
+      const { best, median, timeStep_s } = await transportStep(nx, ny, nz, threads);
+      figures.set(`${grid}/${threads}`, best);
+      print({
+        name: 'transport-step',
+        grid,
+        threads,
+        cellStepsPerSecond: Math.round(best),
+        medianCellStepsPerSecond: Math.round(median),
+        numpyPeerCellStepsPerSecond: peer === null ? null : Math.round(peer),
+        ratioToNumpyPeer: peer === null ? null : Number((best / peer).toFixed(2)),
+        timeStep_s: Number(timeStep_s.toFixed(3)),
+        verticalAdvection: false,
+      });
+    }
+  }
+  {
+    const { best } = await transportStep(200, 200, 30, 2, -0.01);
+    print({ name: 'transport-step', grid: '200x200x30', threads: 2, cellStepsPerSecond: Math.round(best), verticalAdvection: true, verticalVelocity_m_s: -0.01 });
+  }
+
+  const bandwidth = triadBandwidth_bytes_s();
+  const reference = figures.get('400x400x30/1') ?? 0;
+  print({
+    name: 'memory-bandwidth',
+    triadBytesPerSecond: Math.round(bandwidth),
+    kernelBytesPerCellStep: KERNEL_BYTES_PER_CELL_STEP,
+    kernelGrid: '400x400x30',
+    kernelThreads: 1,
+    fractionOfTriad: Number(((reference * KERNEL_BYTES_PER_CELL_STEP) / bandwidth).toFixed(3)),
+  });
+
+  if (existsSync(DEMO)) {
+    const loaded = await loadScenarioFile(DEMO);
+    if (!loaded.ok) throw new Error(`demo scenario does not load: ${JSON.stringify(loaded.issues)}`);
+    const scenario = loaded.scenario;
+    const geometry = prepareScenarioGeometry(scenario);
+    if (scenario.weather.kind !== 'steady') throw new Error('the demo scenario is expected to have steady weather');
+    const weather = resolveWeather(scenario.weather, scenario.site);
+    const input = steadyInput(scenario, geometry, weather);
+    const started = performance.now();
+    const { result, report } = solveGridSteadyDetailed(input);
+    const wallSeconds = (performance.now() - started) / 1000;
+    const { nx, ny, nz } = input.grid;
+    print({
+      name: 'steady-solve',
+      scenario: 'merrowdene-heat-plant',
+      grid: `${nx}x${ny}x${nz}`,
+      cells: nx * ny * nz,
+      wallSeconds: Number(wallSeconds.toFixed(2)),
+      sweeps: report.sweeps,
+      converged: report.converged,
+      lastRelativeChange: report.lastChange,
+      tolerance: report.tolerance,
+      massBudgetRelativeImbalance: result.massBudget_g?.relativeImbalance ?? null,
+    });
+  } else {
+    print({ name: 'steady-solve', skipped: `no demo scenario at ${DEMO}` });
+  }
+}
+
+await main();
