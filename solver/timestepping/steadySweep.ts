@@ -285,7 +285,10 @@ function fieldL1(c: SteadyCoefficients, field: Float64Array, dz: Float64Array): 
 }
 
 /** Anderson mixing depth: how many past sweeps the accelerated iterate combines. */
-export const ANDERSON_DEPTH = 6;
+export const ANDERSON_DEPTH = 5;
+
+/** Deepest mixing the fused passes hold. */
+export const MAX_ANDERSON_DEPTH = 6;
 
 function dot(a: Float64Array, b: Float64Array): number {
   let sum = 0;
@@ -339,6 +342,9 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   const maxSweeps = options.maxSweeps ?? STEADY_MAX_SWEEPS;
   const minSweeps = options.minSweeps ?? 2;
   const depth = options.andersonDepth ?? ANDERSON_DEPTH;
+  if (!Number.isInteger(depth) || depth < 0 || depth > MAX_ANDERSON_DEPTH) {
+    throw new RangeError(`andersonDepth is ${depth}; allowed: an integer from 0 to ${MAX_ANDERSON_DEPTH}`);
+  }
   const physics = model.physics;
   const coefficients = steadyCoefficients(physics);
   const { grid, layout } = model;
@@ -363,13 +369,17 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   const onProgress = options.control?.onProgress;
 
   const size = layout.size;
+  const planeStride = layout.planeStride;
   const iterate = new Float64Array(size);
-  const residual = new Float64Array(size);
   const previousResidual = new Float64Array(size);
   const previousImage = new Float64Array(size);
-  const residualDifferences: Float64Array[] = [];
-  const imageDifferences: Float64Array[] = [];
-  const gram: Float64Array[] = Array.from({ length: depth }, () => new Float64Array(depth));
+  // History of differences of residuals and images, in float32: Anderson mixing only needs them to a few
+  // digits (the mixed iterate is checked by the next sweep), and half the bytes halve its cost.
+  const residualDifferences: Float32Array[] = [];
+  const imageDifferences: Float32Array[] = [];
+  const gram: Float64Array[] = Array.from({ length: Math.max(depth, 1) }, () => new Float64Array(Math.max(depth, 1)));
+  const projections = new Float64Array(Math.max(depth, 1));
+  const zeros = new Float32Array(size);
   let stored = 0;
   let newest = -1;
 
@@ -379,21 +389,54 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   let estimatedError = Infinity;
   let sweeps = 0;
   let converged = false;
+  fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
+  iterate.set(field);
   while (sweeps < maxSweeps) {
     if (signal?.aborted) {
       const error = new Error('grid steady solve aborted');
       error.name = 'AbortError';
       throw error;
     }
-    iterate.set(field);
-    fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
     deferredCorrection(coefficients, field, correction, physics.sourceCells, sourceDensities);
     sweep(coefficients, field, correction, column, grid.dz_m, iForward, jForward);
     sweeps++;
-    // field now holds G(iterate); residual = G(x) - x.
-    for (let n = 0; n < size; n++) residual[n] = field[n] - iterate[n];
-    const change = fieldL1Difference(coefficients, field, iterate, grid.dz_m);
-    const norm = fieldL1(coefficients, field, grid.dz_m);
+    fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
+    // field = G(iterate). One pass: the change, the new differences and their projections.
+    const mixing = depth > 0 && sweeps > 1;
+    if (mixing) {
+      newest = (newest + 1) % depth;
+      if (residualDifferences.length < depth) {
+        residualDifferences.push(new Float32Array(size));
+        imageDifferences.push(new Float32Array(size));
+      }
+      stored = Math.min(stored + 1, depth);
+      for (let slot = 0; slot < stored; slot++) gram[slot][newest] = 0;
+      projections.fill(0);
+    }
+    const newestResidual = mixing ? residualDifferences[newest] : null;
+    const newestImage = mixing ? imageDifferences[newest] : null;
+    let change = 0;
+    let norm = 0;
+    for (let k = 0; k < grid.nz; k++) {
+      const from = k * planeStride;
+      const to = from + planeStride;
+      let layerChange = 0;
+      let layerNorm = 0;
+      for (let n = from; n < to; n++) {
+        const image = field[n];
+        const residual = image - iterate[n];
+        layerChange += residual < 0 ? -residual : residual;
+        layerNorm += image < 0 ? -image : image;
+        if (newestResidual !== null && newestImage !== null) {
+          newestResidual[n] = residual - previousResidual[n];
+          newestImage[n] = image - previousImage[n];
+        }
+        previousResidual[n] = residual;
+        previousImage[n] = image;
+      }
+      change += layerChange * grid.dz_m[k];
+      norm += layerNorm * grid.dz_m[k];
+    }
     previousChange = lastChange;
     lastChange = norm > 0 ? change / norm : 0;
     contraction = Number.isFinite(previousChange) && previousChange > 0 ? Math.min(lastChange / previousChange, 0.999) : 0.999;
@@ -403,39 +446,45 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
       converged = true;
       break;
     }
-    if (depth > 0 && sweeps > 1) {
-      // Store the newest differences (a ring of `depth` slots).
-      newest = (newest + 1) % depth;
-      if (residualDifferences.length < depth) {
-        residualDifferences.push(new Float64Array(size));
-        imageDifferences.push(new Float64Array(size));
-      }
-      const dF = residualDifferences[newest];
-      const dG = imageDifferences[newest];
+    if (mixing && newestResidual !== null) {
+      // Projections of the newest difference and of the residual on every stored difference, and the
+      // mixed iterate, each in one pass over the field (up to six slots held in locals; empty slots
+      // point at a zero array with weight 0).
+      const slot = (index: number): Float32Array => (index < stored ? residualDifferences[index] : zeros);
+      const d0 = slot(0), d1 = slot(1), d2 = slot(2), d3 = slot(3), d4 = slot(4), d5 = slot(5);
+      let n0 = 0, n1 = 0, n2 = 0, n3 = 0, n4 = 0, n5 = 0;
+      let r0 = 0, r1 = 0, r2 = 0, r3 = 0, r4 = 0, r5 = 0;
       for (let n = 0; n < size; n++) {
-        dF[n] = residual[n] - previousResidual[n];
-        dG[n] = field[n] - previousImage[n];
+        const fresh = newestResidual[n];
+        const residual = previousResidual[n];
+        n0 += d0[n] * fresh; r0 += d0[n] * residual;
+        n1 += d1[n] * fresh; r1 += d1[n] * residual;
+        n2 += d2[n] * fresh; r2 += d2[n] * residual;
+        n3 += d3[n] * fresh; r3 += d3[n] * residual;
+        n4 += d4[n] * fresh; r4 += d4[n] * residual;
+        n5 += d5[n] * fresh; r5 += d5[n] * residual;
       }
-      stored = Math.min(stored + 1, depth);
-      for (let slot = 0; slot < stored; slot++) {
-        const value = dot(residualDifferences[slot], dF);
-        gram[slot][newest] = value;
-        gram[newest][slot] = value;
+      const withNewest = [n0, n1, n2, n3, n4, n5];
+      const withResidual = [r0, r1, r2, r3, r4, r5];
+      for (let index = 0; index < stored; index++) {
+        gram[index][newest] = withNewest[index];
+        gram[newest][index] = withNewest[index];
+        projections[index] = withResidual[index];
       }
-      const rhs = new Float64Array(stored);
-      for (let slot = 0; slot < stored; slot++) rhs[slot] = dot(residualDifferences[slot], residual);
-      const gamma = leastSquares(gram, rhs, stored);
-      previousResidual.set(residual);
-      previousImage.set(field);
-      for (let slot = 0; slot < stored; slot++) {
-        const weight = gamma[slot];
-        const image = imageDifferences[slot];
-        for (let n = 0; n < size; n++) field[n] -= weight * image[n];
+      const gamma = leastSquares(gram, projections, stored);
+      const weight = (index: number): number => (index < stored ? gamma[index] : 0);
+      const image = (index: number): Float32Array => (index < stored ? imageDifferences[index] : zeros);
+      const g0 = weight(0), g1 = weight(1), g2 = weight(2), g3 = weight(3), g4 = weight(4), g5 = weight(5);
+      const e0 = image(0), e1 = image(1), e2 = image(2), e3 = image(3), e4 = image(4), e5 = image(5);
+      // x_next = G(x) - sum gamma_i dG_i, clipped at zero; it is also the next sweep's start.
+      for (let n = 0; n < size; n++) {
+        const value = field[n] - (g0 * e0[n] + g1 * e1[n] + g2 * e2[n] + g3 * e3[n] + g4 * e4[n] + g5 * e5[n]);
+        const clipped = value > 0 ? value : 0;
+        field[n] = clipped;
+        iterate[n] = clipped;
       }
-      for (let n = 0; n < size; n++) if (field[n] < 0) field[n] = 0;
     } else {
-      previousResidual.set(residual);
-      previousImage.set(field);
+      iterate.set(field);
     }
   }
   fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
