@@ -4,7 +4,8 @@
  * results went and what the peak is.
  *
  * Exit codes: 0 done; 2 invalid input (usage, scenario issues, geometry or weather that cannot be used),
- * each message naming the option or field; 1 internal failure or a capability this build lacks.
+ * each message naming the option or field; 1 internal failure or a capability this build lacks;
+ * 130 interrupted (Ctrl-C during a grid solve in its worker thread).
  */
 import { stat } from 'node:fs/promises';
 import path from 'node:path';
@@ -12,7 +13,8 @@ import { loadScenarioFile } from '../scenario/load.ts';
 import { formatIssues } from '../scenario/schema.ts';
 import type { Scenario, SolverMode } from '../scenario/types.ts';
 import { runScenario, ScenarioInputError } from '../solver/drivers/runScenario.ts';
-import { UnavailableError, type SteadySolver } from '../solver/drivers/solveSteady.ts';
+import { solveSteady, UnavailableError, type SteadySolver } from '../solver/drivers/solveSteady.ts';
+import { solveGridSteadyInWorker } from '../jobs/solveInWorker.ts';
 import type { ScenarioRunResult } from '../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../results/caution.ts';
 import { writeResultFolder, type WrittenResultFolder } from '../results/writeResultFolder.ts';
@@ -35,7 +37,7 @@ Options:
                      default: round numbers (1-2-5 series) across the field's range, at most 7
   -h, --help         show this help
 
-Exit codes: 0 done, 2 invalid input, 1 internal failure.
+Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 Set PLUMEPLAN_DEBUG=1 to see the stack of an internal failure.
 Results are screening estimates only; see the caution in summary.json.
 `;
@@ -96,9 +98,12 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
     const scenario = outcome.scenario;
     const mode = args.mode ?? scenario.solver.mode;
 
+    // A single steady grid solve runs in a worker thread (the command stays responsive and Ctrl-C stops
+    // it at once); series make many solves, where starting a thread for each costs more than it gives.
+    const solve = options.solve ?? (scenario.weather.kind === 'steady' ? workerSteadySolver : undefined);
     const result = await runScenario(scenario, {
       mode,
-      solve: options.solve,
+      solve,
       control: { onProgress: (fraction, message) => progress.update(fraction, message) },
     });
     progress.update(1, 'writing the result folder');
@@ -135,8 +140,33 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
   };
 }
 
+/** Exit code of a run stopped by an interrupt (128 + SIGINT, the shell convention). */
+export const INTERRUPTED_EXIT_CODE = 130;
+
+/**
+ * Grid steady solves in a worker thread, everything else in process. While the worker runs, Ctrl-C
+ * (SIGINT) aborts it; the in-process solves keep Node's own Ctrl-C behaviour (the process stops).
+ */
+export const workerSteadySolver: SteadySolver = async (input, mode, control = {}) => {
+  if (mode !== 'grid') return solveSteady(input, mode, control);
+  const controller = new AbortController();
+  const abort = (): void => controller.abort();
+  control.signal?.addEventListener('abort', abort, { once: true });
+  process.once('SIGINT', abort);
+  try {
+    return await solveGridSteadyInWorker(input, { onProgress: control.onProgress, signal: controller.signal });
+  } finally {
+    process.off('SIGINT', abort);
+    control.signal?.removeEventListener('abort', abort);
+  }
+};
+
 /** Exit code and message for an error thrown while running. */
 function reportFailure(error: unknown, io: CommandIO): number {
+  if (error instanceof Error && error.name === 'AbortError') {
+    io.stderr.write('plumeplan run: interrupted; no results written\n');
+    return INTERRUPTED_EXIT_CODE;
+  }
   if (error instanceof ScenarioInputError) {
     io.stderr.write(`plumeplan run: invalid scenario: ${error.message}\n`);
     return 2;

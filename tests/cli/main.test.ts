@@ -3,7 +3,7 @@
  * scenarios (exit 2, field named), capabilities not in the build and internal failures (exit 1),
  * progress on stderr. The spawned end-to-end runs are in tests/e2e.
  */
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -149,6 +149,19 @@ describe('run', () => {
     const run = capture();
     expect(await main(['run', smallDemo(), '--out', path.join(scratch, 'out-grid')], run.io, { solve: unavailable })).toBe(1);
     expect(run.stderr()).toContain('grid mode arrives with the solver; use --mode gaussian meanwhile');
+  });
+
+  it('exits 130 when the run is interrupted (an AbortError from the solve), writing nothing', async () => {
+    const interrupted: SteadySolver = async () => {
+      const error = new Error('grid run aborted');
+      error.name = 'AbortError';
+      throw error;
+    };
+    const out = path.join(scratch, 'out-interrupted');
+    const run = capture();
+    expect(await main(['run', smallDemo(), '--out', out], run.io, { solve: interrupted })).toBe(130);
+    expect(run.stderr()).toBe('plumeplan run: interrupted; no results written\n');
+    expect(existsSync(out)).toBe(false);
   });
 
   it('exits 1 on an internal failure, without a stack unless PLUMEPLAN_DEBUG=1', async () => {
