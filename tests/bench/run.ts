@@ -174,3 +174,4 @@ async function main(): Promise<void> {
 }
 
 await main();
+await import('./weather.ts'); // weather benchmarks: the demo met year hour by hour, a continuous week (tests/bench/weather.ts)
