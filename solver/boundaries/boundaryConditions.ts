@@ -96,9 +96,10 @@ export function lidFaceIndex(grid: LocalGrid, lid: MixingLid): number {
 }
 
 /**
- * Write the ghost cells of layers [kFrom, kTo) and rows [jFrom, jTo) (x ghosts), plus the south ghost rows
- * when jFrom = 0 and the north ones when jTo = ny (y ghosts). Reads interior values only, so slabs of rows
- * can fill their own ghosts in parallel.
+ * Write the x ghost cells of rows [jFrom - 2, jTo) (clipped to the grid) in every layer, plus the south
+ * ghost rows when jFrom = 0 and the north ones when jTo = ny (y ghosts). Reads interior values only, so
+ * slabs of rows can fill their own ghosts in parallel; the two rows below a slab are included because its
+ * first row's slopes read their x ghosts (their owner writes the same values).
  *
  * @param u_m_s, v_m_s layer wind components [m/s] (their signs pick the outflow sides)
  */
@@ -118,7 +119,7 @@ export function fillGhostCells(
     const plane = k * planeStride;
     const westOutflow = u_m_s[k] < 0;
     const eastOutflow = u_m_s[k] > 0;
-    for (let j = jFrom; j < jTo; j++) {
+    for (let j = Math.max(0, jFrom - 2); j < jTo; j++) {
       const first = plane + rowStride * (j + GHOST) + GHOST;
       const last = first + nx - 1;
       if (periodic) {

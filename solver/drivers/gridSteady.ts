@@ -156,6 +156,14 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
   const heights = releaseHeights_m(input, weather);
   const model = createDispersionModel(gridModelParts(input, weather, heights, options.background_g_m3 ?? 0));
   const tolerance = options.tolerance ?? STEADY_TOLERANCE;
+  // Receptors are checked before the solve, so a bad position fails at once.
+  input.receptors.forEach((receptor, n) => {
+    try {
+      sampleField(grid, model.layout, model.field, receptor.x_m, receptor.y_m, receptor.height_m);
+    } catch (error) {
+      throw new RangeError(`receptors[${n}] (${receptor.id}): ${(error as Error).message}`);
+    }
+  });
   const report = solveSteadyState(model, { tolerance, maxSweeps: options.maxSweeps, control });
 
   const rates = steadyBudgetRates_g_s(model);

@@ -22,6 +22,7 @@ import { createPaddedField, gridOrderToPadded, paddedFieldMass_g, paddedLayout, 
 import type { LocalGrid } from '../grid/types.ts';
 import { totalLossRate_per_s, type FirstOrderLoss } from '../losses/firstOrderLosses.ts';
 import { NoEmission, type GridEmission } from '../sources/gridEmission.ts';
+import { createKernelMemory, type KernelMemory } from '../timestepping/simd/transportRowModule.ts';
 import { COURANT_TARGET, DEFAULT_MAX_TIME_STEP_S, stableTimeStep_s, type StepPhysics } from '../timestepping/stepPlan.ts';
 import { layerSpeeds_m_s, type ColumnWind } from '../wind/columnWind.ts';
 import type { ResolvedWeather } from './types.ts';
@@ -61,6 +62,11 @@ export interface DispersionModelParts {
   maxTimeStep_s?: number;
   /** keep the field on shared memory so worker threads can step it */
   sharedMemory?: boolean;
+  /**
+   * step rows with the WebAssembly SIMD kernel where the runtime has it (default true); its results equal
+   * the JavaScript loop's bit for bit. The fields then live in one shared WebAssembly memory.
+   */
+  simd?: boolean;
 }
 
 /** Running mass budget of a model [g], float64 throughout. */
@@ -92,6 +98,8 @@ export interface DispersionModel {
   field: Float64Array;
   /** the second buffer the stepper writes into */
   spare: Float64Array;
+  /** the shared WebAssembly memory holding field and spare when the SIMD kernel is used, else null */
+  readonly kernelMemory: KernelMemory | null;
   clock: { time_s: number; iteration: number };
   budget: BudgetTally;
   /** physics derived from the parts (recomputed by replaceModelParts) */
@@ -161,6 +169,13 @@ function derivePhysics(model: Omit<DispersionModel, 'physics' | 'timeStep_s' | '
 export function createDispersionModel(parts: DispersionModelParts): DispersionModel {
   const layout = paddedLayout(parts.grid);
   const shared = parts.sharedMemory ?? false;
+  const kernelMemory = parts.simd === false ? null : createKernelMemory(layout.size, layout.nx);
+  const fields: [Float64Array, Float64Array] = kernelMemory
+    ? [
+        new Float64Array(kernelMemory.memory.buffer, kernelMemory.fieldOffsets[0], layout.size),
+        new Float64Array(kernelMemory.memory.buffer, kernelMemory.fieldOffsets[1], layout.size),
+      ]
+    : [createPaddedField(layout, shared), createPaddedField(layout, shared)];
   const base = {
     grid: parts.grid,
     layout,
@@ -177,8 +192,9 @@ export function createDispersionModel(parts: DispersionModelParts): DispersionMo
     },
     courantTarget: parts.courantTarget ?? COURANT_TARGET,
     maxTimeStep_s: parts.maxTimeStep_s ?? DEFAULT_MAX_TIME_STEP_S,
-    field: createPaddedField(layout, shared),
-    spare: createPaddedField(layout, shared),
+    field: fields[0],
+    spare: fields[1],
+    kernelMemory,
     clock: { time_s: 0, iteration: 0 },
     budget: { emitted: 0, decayed: 0, washedOut: 0, dryDeposited: 0, outflow: 0, inDomain: 0 },
   };

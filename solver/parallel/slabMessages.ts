@@ -4,11 +4,15 @@
 import type { LateralBoundaries } from '../boundaries/boundaryConditions.ts';
 import type { PaddedLayout } from '../fields/paddedLayout.ts';
 import type { StepPlan } from '../timestepping/stepPlan.ts';
+import type { KernelMemory } from '../timestepping/simd/transportRowModule.ts';
 
 export interface SlabSetup {
   type: 'setup';
-  /** the model's two field buffers (shared) */
+  /** where the model's two fields live: shared buffers and byte offsets (one buffer for both with the SIMD kernel) */
   fields: [SharedArrayBuffer, SharedArrayBuffer];
+  fieldOffsets: [number, number];
+  /** the model's kernel memory when it uses the SIMD kernel (a shared WebAssembly memory), else null */
+  kernelMemory: KernelMemory | null;
   /** tally accumulators, TALLY_LENGTH per slab, and the completion counter */
   tally: SharedArrayBuffer;
   counter: SharedArrayBuffer;

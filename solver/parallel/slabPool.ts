@@ -10,6 +10,7 @@ import type { DispersionModel } from '../drivers/model.ts';
 import type { StepPlan } from '../timestepping/stepPlan.ts';
 import type { StepExecutor } from '../timestepping/timeStepper.ts';
 import { TALLY_LENGTH, createSlabScratch, transportSlab, type SlabScratch } from '../timestepping/transportKernel.ts';
+import { MAX_SLABS } from '../timestepping/simd/transportRowModule.ts';
 import type { SlabMessage } from './slabMessages.ts';
 import { createTypeScriptWorker } from './typescriptWorker.ts';
 
@@ -25,6 +26,7 @@ export class SlabPoolExecutor implements StepExecutor {
   private workers: Worker[] = [];
   private model: DispersionModel | null = null;
   private buffers: [SharedArrayBuffer, SharedArrayBuffer] | null = null;
+  private offsets: [number, number] = [0, 0];
   private rows: [number, number][] = [];
   private scratch: SlabScratch | null = null;
   private readonly counter = new Int32Array(new SharedArrayBuffer(4));
@@ -67,17 +69,25 @@ export class SlabPoolExecutor implements StepExecutor {
     if (!(a instanceof SharedArrayBuffer) || !(b instanceof SharedArrayBuffer)) {
       throw new RangeError('the model field is not on shared memory; build it with createDispersionModel({ sharedMemory: true })');
     }
-    if (this.model === model && this.buffers && (this.buffers[0] === a || this.buffers[0] === b)) return;
+    const offsetA = model.field.byteOffset;
+    const offsetB = model.spare.byteOffset;
+    if (this.model === model && this.buffers && this.isAttached(model.field) && this.isAttached(model.spare)) return;
+    if (model.kernelMemory !== null && this.threads > MAX_SLABS) {
+      throw new RangeError(`threads is ${this.threads}; the SIMD kernel memory has scratch for at most ${MAX_SLABS}`);
+    }
     this.model = model;
     this.buffers = [a, b];
+    this.offsets = [offsetA, offsetB];
     this.rows = slabRows(model.grid.ny, this.threads);
-    this.scratch = createSlabScratch(model.grid.nx, this.rows[0][1] - this.rows[0][0]);
+    this.scratch = createSlabScratch(model.grid.nx, this.rows[0][1] - this.rows[0][0], model.kernelMemory, 0);
     this.lastPlan = null;
     this.workers.forEach((worker, w) => {
       const [jFrom, jTo] = this.rows[w + 1];
       const message: SlabMessage = {
         type: 'setup',
         fields: [a, b],
+        fieldOffsets: [offsetA, offsetB],
+        kernelMemory: model.kernelMemory,
         tally: this.tally.buffer as SharedArrayBuffer,
         counter: this.counter.buffer as SharedArrayBuffer,
         layout: model.layout,
@@ -87,6 +97,11 @@ export class SlabPoolExecutor implements StepExecutor {
       };
       worker.postMessage(message);
     });
+  }
+
+  private isAttached(field: Float64Array): boolean {
+    const buffers = this.buffers!;
+    return (field.buffer === buffers[0] && field.byteOffset === this.offsets[0]) || (field.buffer === buffers[1] && field.byteOffset === this.offsets[1]);
   }
 
   /** Attach a model ahead of the first step and wait until every worker has it (keeps set-up out of timings). */
@@ -100,7 +115,7 @@ export class SlabPoolExecutor implements StepExecutor {
   step(model: DispersionModel, plan: StepPlan, previous: Float64Array, next: Float64Array): Float64Array {
     this.attach(model);
     const buffers = this.buffers!;
-    const previousIndex: 0 | 1 = previous.buffer === buffers[0] ? 0 : 1;
+    const previousIndex: 0 | 1 = previous.buffer === buffers[0] && previous.byteOffset === this.offsets[0] ? 0 : 1;
     if (plan !== this.lastPlan) {
       this.planId++;
       this.lastPlan = plan;

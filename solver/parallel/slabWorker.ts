@@ -21,10 +21,13 @@ port.on('message', (message: SlabMessage) => {
   switch (message.type) {
     case 'setup':
       setup = message;
-      fields = [new Float64Array(message.fields[0]), new Float64Array(message.fields[1])];
+      fields = [
+        new Float64Array(message.fields[0], message.fieldOffsets[0], message.layout.size),
+        new Float64Array(message.fields[1], message.fieldOffsets[1], message.layout.size),
+      ];
       tally = new Float64Array(message.tally);
       counter = new Int32Array(message.counter);
-      scratch = createSlabScratch(message.layout.nx, message.jTo - message.jFrom);
+      scratch = createSlabScratch(message.layout.nx, message.jTo - message.jFrom, message.kernelMemory, message.slab);
       port.postMessage({ type: 'ready' });
       break;
     case 'plan':

@@ -24,12 +24,14 @@ export class SerialStepExecutor implements StepExecutor {
   readonly name = 'SerialStepExecutor';
   readonly threads = 1;
   private scratch: SlabScratch | null = null;
+  private scratchMemory: unknown = null;
   private readonly tally = new Float64Array(TALLY_LENGTH);
 
   step(model: DispersionModel, plan: StepPlan, previous: Float64Array, next: Float64Array): Float64Array {
     const { nx, ny } = model.grid;
-    if (this.scratch === null || this.scratch.slopeY.length !== nx || this.scratch.fluxZ.length !== nx * ny) {
-      this.scratch = createSlabScratch(nx, ny);
+    if (this.scratch === null || this.scratch.slopeY.length !== nx || this.scratch.fluxZ.length !== nx * ny || this.scratchMemory !== model.kernelMemory) {
+      this.scratch = createSlabScratch(nx, ny, model.kernelMemory, 0);
+      this.scratchMemory = model.kernelMemory;
     }
     fillGhostCells(model.layout, previous, model.boundaries.lateral, model.wind.u_m_s, model.wind.v_m_s, 0, ny);
     this.tally.fill(0);

@@ -13,9 +13,12 @@
  * ../fields/paddedLayout.ts); fluxes positive toward +x, +y, +z.
  */
 import type { StepPlan } from './stepPlan.ts';
+import { MAX_SLABS, instantiateTransportRow, kernelScratchOffset, type KernelMemory, type TransportRowFunction } from './simd/transportRowModule.ts';
 
 /** Per-slab work arrays (allocated once, reused every step: no allocation in the loops). */
 export interface SlabScratch {
+  /** the WebAssembly SIMD row kernel on the memory that holds the fields and these rows, or null */
+  row: TransportRowFunction | null;
   /** limited y slope of the current row, per column */
   slopeY: Float64Array;
   /** y flux through the south face of the current row, per column */
@@ -24,8 +27,22 @@ export interface SlabScratch {
   fluxZ: Float64Array;
 }
 
-export function createSlabScratch(nx: number, rows: number): SlabScratch {
-  return { slopeY: new Float64Array(nx), fluxY: new Float64Array(nx), fluxZ: new Float64Array(nx * rows) };
+/**
+ * Work arrays for a slab of `rows` rows. With a kernel memory, the y rows live in it (slab number `slab`)
+ * and the SIMD row kernel is instantiated on it.
+ */
+export function createSlabScratch(nx: number, rows: number, kernel: KernelMemory | null = null, slab = 0): SlabScratch {
+  if (kernel !== null) {
+    if (kernel.nx !== nx || slab < 0 || slab >= MAX_SLABS) throw new RangeError(`slab ${slab} does not fit the kernel memory (nx ${kernel.nx}, ${MAX_SLABS} slabs)`);
+    const offset = kernelScratchOffset(kernel, slab);
+    return {
+      row: instantiateTransportRow(kernel),
+      slopeY: new Float64Array(kernel.memory.buffer, offset, nx),
+      fluxY: new Float64Array(kernel.memory.buffer, offset + 8 * nx, nx),
+      fluxZ: new Float64Array(nx * rows),
+    };
+  }
+  return { row: null, slopeY: new Float64Array(nx), fluxY: new Float64Array(nx), fluxZ: new Float64Array(nx * rows) };
 }
 
 /** What a slab step books, added into `tally` at `offset`: [outflow g, mass after g, ground-layer mass after g]. */
@@ -104,6 +121,9 @@ export function transportSlab(
   let outflow_g = 0;
   const twoRows = rowStride + rowStride;
   const verticalAdvection = plan.verticalAdvection;
+  // The SIMD row kernel does two cells at a time and has no vertical advection: even nx, w = 0.
+  const row = scratch.row;
+  const useRowKernel = row !== null && !verticalAdvection && (nx & 1) === 0 && previous.buffer === scratch.slopeY.buffer && next.buffer === previous.buffer;
 
   for (let k = 0; k < nz; k++) {
     const cxPlus = plan.xPlus[k];
@@ -154,35 +174,60 @@ export function transportSlab(
       const below = k === 0 ? 0 : lower;
       const belowSource = k === 0 ? previous : next;
       const belowOffset = k === 0 ? 0 : planeStride;
-      for (let i = 0; i < nx; i++) {
-        const n = base + i;
-        const cEE = previous[n + 2];
-        const cN = previous[n + rowStride];
-        const dE = cE - c0;
-        const dEE = cEE - cE;
-        const dN = cN - c0;
-        const dNN = previous[n + twoRows] - cN;
-        // van Leer slopes of the east and north neighbours, (a|b| + |a|b) / (|a| + |b|), with one division
-        // for both: 1/X = Y / (X Y). SLOPE_FLOOR keeps X Y finite and non-zero.
-        const absE = Math.abs(dE);
-        const absEE = Math.abs(dEE);
-        const absN = Math.abs(dN);
-        const absNN = Math.abs(dNN);
-        const sumX = absE + absEE + SLOPE_FLOOR;
-        const sumY = absN + absNN + SLOPE_FLOOR;
-        const inverse = 1 / (sumX * sumY);
-        const sE = (dE * absEE + absE * dEE) * sumY * inverse;
-        const sN = (dN * absNN + absN * dNN) * sumX * inverse;
-        const fluxE = cxPlus * (c0 + ax * s0) + cxMinus * (cE - ax * sE) - dxn * dE;
-        const fluxN = cyPlus * (c0 + ay * slopeY[i]) + cyMinus * (cN - ay * sN) - dyn * dN;
-        const explicit = c0 - (fluxE - fluxW) - (fluxN - fluxY[i]);
-        next[n] = verticalAdvection ? explicit : (explicit + below * belowSource[n - belowOffset]) * inversePivot;
-        fluxY[i] = fluxN;
-        slopeY[i] = sN;
-        fluxW = fluxE;
-        c0 = cE;
-        cE = cEE;
-        s0 = sE;
+      if (useRowKernel) {
+        const belowAddress = k === 0 ? previous.byteOffset + 8 * base : next.byteOffset + 8 * (base - planeStride);
+        fluxW = row!(
+          previous.byteOffset + 8 * base,
+          next.byteOffset + 8 * base,
+          belowAddress,
+          slopeY.byteOffset,
+          fluxY.byteOffset,
+          nx >> 1,
+          8 * rowStride,
+          cxPlus,
+          cxMinus,
+          ax,
+          dxn,
+          cyPlus,
+          cyMinus,
+          ay,
+          dyn,
+          below,
+          inversePivot,
+          s0,
+          fluxW,
+        );
+      } else {
+        for (let i = 0; i < nx; i++) {
+          const n = base + i;
+          const cEE = previous[n + 2];
+          const cN = previous[n + rowStride];
+          const dE = cE - c0;
+          const dEE = cEE - cE;
+          const dN = cN - c0;
+          const dNN = previous[n + twoRows] - cN;
+          // van Leer slopes of the east and north neighbours, (a|b| + |a|b) / (|a| + |b|), with one division
+          // for both: 1/X = Y / (X Y). SLOPE_FLOOR keeps X Y finite and non-zero.
+          const absE = Math.abs(dE);
+          const absEE = Math.abs(dEE);
+          const absN = Math.abs(dN);
+          const absNN = Math.abs(dNN);
+          const sumX = absE + absEE + SLOPE_FLOOR;
+          const sumY = absN + absNN + SLOPE_FLOOR;
+          const inverse = 1 / (sumX * sumY);
+          const sE = (dE * absEE + absE * dEE) * sumY * inverse;
+          const sN = (dN * absNN + absN * dNN) * sumX * inverse;
+          const fluxE = cxPlus * (c0 + ax * s0) + cxMinus * (cE - ax * sE) - dxn * dE;
+          const fluxN = cyPlus * (c0 + ay * slopeY[i]) + cyMinus * (cN - ay * sN) - dyn * dN;
+          const explicit = c0 - (fluxE - fluxW) - (fluxN - fluxY[i]);
+          next[n] = verticalAdvection ? explicit : (explicit + below * belowSource[n - belowOffset]) * inversePivot;
+          fluxY[i] = fluxN;
+          slopeY[i] = sN;
+          fluxW = fluxE;
+          c0 = cE;
+          cE = cEE;
+          s0 = sE;
+        }
       }
       layerOutflow += fluxW;
       if (j === ny - 1) {

@@ -15,7 +15,9 @@ import { execFileSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { loadScenarioFile } from '../../scenario/load.ts';
 import { ConstantDiffusivity } from '../../solver/closures/constantDiffusivity.ts';
-import { solveGridSteadyDetailed } from '../../solver/drivers/gridSteady.ts';
+import { gridModelParts, releaseHeights_m, solveGridSteadyDetailed } from '../../solver/drivers/gridSteady.ts';
+import type { SteadyRunInput } from '../../solver/drivers/types.ts';
+import { sampleField } from '../../solver/diagnostics/receptorSampling.ts';
 import { createDispersionModel, setInitialField } from '../../solver/drivers/model.ts';
 import { steadyInput } from '../../solver/drivers/runScenario.ts';
 import { paddedToGridOrder } from '../../solver/fields/paddedLayout.ts';
@@ -107,9 +109,57 @@ function triadBandwidth_bytes_s(): number {
   return best;
 }
 
+/**
+ * The same steady state by plain time stepping (Courant step, two threads), from an empty domain until the
+ * field changes by less than 1e-4 (relative L1) over 100 steps, for comparison with the steady solve.
+ */
+async function steadyByTimeMarch(input: SteadyRunInput, steadyReceptors_ug_m3: Float64Array, steadyWallSeconds: number): Promise<Record<string, unknown>> {
+  const pool = await SlabPoolExecutor.create(2);
+  const parts = gridModelParts(input, input.weather, releaseHeights_m(input, input.weather));
+  const model = createDispersionModel({ ...parts, sharedMemory: true });
+  await pool.prepare(model);
+  const started = performance.now();
+  let reference = paddedToGridOrder(model.layout, model.field);
+  let relativeChange = Infinity;
+  const maxSteps = 6000;
+  while (model.clock.iteration < maxSteps) {
+    advanceOneStep(model, model.timeStep_s, pool);
+    if (model.clock.iteration % 100 === 0) {
+      const now = paddedToGridOrder(model.layout, model.field);
+      let change = 0;
+      let size = 0;
+      for (let n = 0; n < now.length; n++) {
+        change += Math.abs(now[n] - reference[n]);
+        size += Math.abs(now[n]);
+      }
+      relativeChange = size > 0 ? change / size : Infinity;
+      reference = now;
+      if (relativeChange < 1e-4) break;
+    }
+  }
+  const wallSeconds = (performance.now() - started) / 1000;
+  await pool.close();
+  const receptor = input.receptors.length > 0 ? sampleField(input.grid, model.layout, model.field, input.receptors[0].x_m, input.receptors[0].y_m, input.receptors[0].height_m) * 1e6 : null;
+  return {
+    name: 'steady-by-time-march',
+    scenario: 'merrowdene-heat-plant',
+    threads: 2,
+    steps: model.clock.iteration,
+    simulatedSeconds: Number(model.clock.time_s.toFixed(0)),
+    wallSeconds: Number(wallSeconds.toFixed(2)),
+    stopRule: 'relative L1 change over 100 steps < 1e-4',
+    lastRelativeChangeOver100Steps: relativeChange,
+    firstReceptorRatioToSteadySolve: receptor === null || steadyReceptors_ug_m3[0] === 0 ? null : Number((receptor / steadyReceptors_ug_m3[0]).toFixed(4)),
+    steadySolveSpeedup: Number((wallSeconds / steadyWallSeconds).toFixed(1)),
+  };
+}
+
+/** Sections to run: PLUMEPLAN_BENCH_SECTIONS=transport,bandwidth,steady (default all). */
+const SECTIONS = new Set((process.env.PLUMEPLAN_BENCH_SECTIONS ?? 'transport,bandwidth,steady').split(','));
+
 async function main(): Promise<void> {
   const figures = new Map<string, number>();
-  for (const [nx, ny, nz] of [[100, 100, 20], [200, 200, 30], [400, 400, 30]] as const) {
+  for (const [nx, ny, nz] of SECTIONS.has('transport') ? ([[100, 100, 20], [200, 200, 30], [400, 400, 30]] as const) : []) {
     const grid = `${nx}x${ny}x${nz}`;
     const peer = numpyPeer(nx, ny, nz);
     for (const threads of [1, 2]) {
@@ -128,13 +178,18 @@ async function main(): Promise<void> {
       });
     }
   }
-  {
+  if (SECTIONS.has('transport')) {
     const { best } = await transportStep(200, 200, 30, 2, -0.01);
     print({ name: 'transport-step', grid: '200x200x30', threads: 2, cellStepsPerSecond: Math.round(best), verticalAdvection: true, verticalVelocity_m_s: -0.01 });
   }
 
+  if (SECTIONS.has('bandwidth')) await bandwidthSection(figures);
+  if (SECTIONS.has('steady')) await steadySection();
+}
+
+async function bandwidthSection(figures: Map<string, number>): Promise<void> {
   const bandwidth = triadBandwidth_bytes_s();
-  const reference = figures.get('400x400x30/1') ?? 0;
+  const reference = figures.get('400x400x30/1') ?? (await transportStep(400, 400, 30, 1)).best;
   print({
     name: 'memory-bandwidth',
     triadBytesPerSecond: Math.round(bandwidth),
@@ -143,6 +198,9 @@ async function main(): Promise<void> {
     kernelThreads: 1,
     fractionOfTriad: Number(((reference * KERNEL_BYTES_PER_CELL_STEP) / bandwidth).toFixed(3)),
   });
+}
+
+async function steadySection(): Promise<void> {
 
   if (existsSync(DEMO)) {
     const loaded = await loadScenarioFile(DEMO);
@@ -168,6 +226,7 @@ async function main(): Promise<void> {
       tolerance: report.tolerance,
       massBudgetRelativeImbalance: result.massBudget_g?.relativeImbalance ?? null,
     });
+    print(await steadyByTimeMarch(input, result.receptors_ug_m3, wallSeconds));
   } else {
     print({ name: 'steady-solve', skipped: `no demo scenario at ${DEMO}` });
   }
