@@ -92,7 +92,13 @@ export function createKernelMemory(fieldLength: number, nx: number): KernelMemor
   const scratchBytes = MAX_SLABS * 2 * nx * 8;
   const pages = Math.ceil((2 * fieldBytes + scratchBytes) / PAGE_BYTES) + 1;
   if (pages > 65536) return null;
-  const memory = new wasm!.Memory({ initial: pages, maximum: pages, shared: true });
+  let memory: WasmMemory;
+  try {
+    memory = new wasm!.Memory({ initial: pages, maximum: pages, shared: true });
+  } catch {
+    // Too large for one shared WebAssembly memory here: the JavaScript loop on plain arrays instead.
+    return null;
+  }
   return {
     memory,
     fieldOffsets: [0, fieldBytes],
