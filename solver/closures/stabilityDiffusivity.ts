@@ -6,9 +6,10 @@
  * form of Holtslag & Boville (1993, J. Climate 6:1825), from memory:
  *
  *   K_z(z) = kappa w_t z (1 - z/h)^2            for 0 < z < h (h the mixing height)
- *   w_t    = u* / phi_h(z / L)                  stable and neutral (L > 0 or infinite), at every height
- *   w_t    = u* / phi_h(min(z, 0.1 h) / L)      unstable (L < 0): surface-layer similarity in the lowest
- *                                               tenth of the layer, held at its top value above
+ *   w_t    = u* / phi_h(z / L)                  stable and neutral (L > 0 or infinite), at every height,
+ *                                               and unstable (L < 0) in the surface layer z < 0.1 h
+ *   w_t    = w_m / Pr                           unstable above 0.1 h: Holtslag & Boville's mixed-layer
+ *                                               velocity scale and Prandtl number (outerLayerVelocityScale_m_s)
  *
  * with the Businger-Dyer similarity functions (Dyer 1974, Boundary-Layer Meteorol. 7:363, from memory):
  * phi_h = 1 + 5 z/L (stable), phi_h = (1 - 16 z/L)^(-1/2) (unstable). The (1 - z/h)^2 shape takes the
@@ -39,7 +40,7 @@
  * ground-reflected Gaussian). x_z is held within [1 m, 10 km], the Briggs range and its near-source
  * limit, so layers above the height a class's curve ever reaches take the 10 km value. This construction
  * is plumeplan's own; the measured agreement with the Briggs reference over 300 m to 5 km, class by
- * class, is recorded in tests/solver/closures/gridVersusGaussian.test.ts.
+ * class, is recorded in docs/closure-check.md and tests/solver/closures/gridVersusGaussian.test.ts.
  * Both diffusivities are proportional to the wind speed (u* and u(z) are), so the steady field
  * scales exactly as 1 / u when nothing else depends on the speed.
  */
@@ -253,10 +254,50 @@ export function verticalDiffusivityAt_m2_s(settings: VerticalProfileSettings, z_
   const { frictionVelocity_m_s: uStar, inverseObukhov_per_m: inverseL, mixingHeight_m: h } = settings;
   const background_m2_s = BACKGROUND_LENGTH_m * uStar;
   if (!(z_m > 0) || z_m >= h) return background_m2_s;
-  const similarityHeight_m = inverseL < 0 ? Math.min(z_m, SURFACE_LAYER_FRACTION * h) : z_m;
-  const velocityScale_m_s = uStar / phiHeat(similarityHeight_m * inverseL);
+  let velocityScale_m_s: number;
+  if (inverseL < 0 && z_m > SURFACE_LAYER_FRACTION * h) {
+    velocityScale_m_s = outerLayerVelocityScale_m_s(uStar, inverseL, h);
+  } else {
+    velocityScale_m_s = uStar / phiHeat(z_m * inverseL);
+  }
   const shape = (1 - z_m / h) * (1 - z_m / h);
   return Math.max(background_m2_s, VON_KARMAN * velocityScale_m_s * z_m * shape);
+}
+
+/**
+ * Velocity scale for heat w_t = w_m / Pr [m/s] in the outer part of an unstable mixed layer
+ * (z > 0.1 h), Holtslag & Boville (1993), from memory:
+ *
+ *   w_m = (u*^3 + 7 epsilon kappa w*^3)^(1/3),   w*^3 = -u*^3 h / (kappa L)  (so w_m = u* / phi_m(epsilon h / L)
+ *                                                 with phi_m = (1 - 7 z/L)^(-1/3), their free-convection form)
+ *   Pr  = phi_h / phi_m (epsilon h / L) + a kappa epsilon w* / w_m,   epsilon = 0.1, a = 7.2
+ *
+ * with the Businger-Dyer phi_h and phi_m = (1 - 16 z/L)^(-1/4) (Dyer 1974). Holtslag & Boville pair this
+ * with a counter-gradient flux, which plumeplan's grid solver does not carry: the local diffusivity is
+ * used alone. The earlier form (u* / phi_h held at 0.1 h) gave two to three times this in classes A-C,
+ * and the grid plumes were diluted vertically well beyond Briggs sigma_z (docs/closure-check.md).
+ * Proportional to u*, as everything here.
+ */
+export function outerLayerVelocityScale_m_s(frictionVelocity_m_s: number, inverseObukhov_per_m: number, mixingHeight_m: number): number {
+  if (!(inverseObukhov_per_m < 0)) {
+    throw new RangeError(`inverseObukhov_per_m: ${inverseObukhov_per_m} is not allowed (the outer-layer scale is for unstable air, 1/L < 0)`);
+  }
+  const epsilon = SURFACE_LAYER_FRACTION;
+  const convectiveVelocityCubed_m3_s3 = (frictionVelocity_m_s ** 3 * mixingHeight_m * -inverseObukhov_per_m) / VON_KARMAN;
+  const convectiveVelocity_m_s = Math.cbrt(convectiveVelocityCubed_m3_s3);
+  const momentumScale_m_s = Math.cbrt(frictionVelocity_m_s ** 3 + 7 * epsilon * VON_KARMAN * convectiveVelocityCubed_m3_s3);
+  const zeta = epsilon * mixingHeight_m * inverseObukhov_per_m;
+  const prandtl =
+    phiHeat(zeta) / phiMomentum(zeta) + (COUNTER_GRADIENT_CONSTANT * VON_KARMAN * epsilon * convectiveVelocity_m_s) / momentumScale_m_s;
+  return momentumScale_m_s / prandtl;
+}
+
+/** The constant a = 7.2 of Holtslag & Boville's (1993) mixed-layer Prandtl number [-], from memory. */
+export const COUNTER_GRADIENT_CONSTANT = 7.2;
+
+/** Businger-Dyer phi_m(zeta) [-] (Dyer 1974, from memory): 1 + 5 zeta stable, (1 - 16 zeta)^(-1/4) unstable. */
+export function phiMomentum(zeta: number): number {
+  return zeta >= 0 ? 1 + 5 * zeta : Math.pow(1 - 16 * zeta, -0.25);
 }
 
 /**

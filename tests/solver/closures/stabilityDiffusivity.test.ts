@@ -1,7 +1,7 @@
 /**
  * The stability-dependent closure's pieces against their published forms (all from memory, as the
  * module says): the neutral log law, the Golder (1972) fit, Businger-Dyer phi_h, the Troen-Mahrt /
- * Holtslag-Boville shape, and the Briggs-growth horizontal construction.
+ * Holtslag-Boville shape and mixed-layer velocity scale, and the Briggs-growth horizontal construction.
  */
 import { describe, expect, it } from 'vitest';
 import type { ResolvedWeather } from '../../../solver/drivers/types.ts';
@@ -14,7 +14,9 @@ import {
   crosswindSpreadingLength_m,
   frictionVelocity_m_s,
   inverseObukhovLength_per_m,
+  outerLayerVelocityScale_m_s,
   phiHeat,
+  phiMomentum,
   psiMomentum,
   ROUGHNESS_LENGTH_m,
   travelDistanceToHeight_m,
@@ -78,14 +80,31 @@ describe('vertical profile K_z = kappa w_t z (1 - z/h)^2 (Troen & Mahrt 1986; Ho
     }
   });
 
-  it('stable: divided by 1 + 5 z/L; unstable: similarity held above 0.1 h', () => {
+  it('stable: divided by 1 + 5 z/L; unstable: surface similarity below 0.1 h, one outer scale above', () => {
     const e = verticalProfileSettings(weather('E', 5, 400), 'rural');
     const L = 1 / e.inverseObukhov_per_m;
     expect(verticalDiffusivityAt_m2_s(e, 50)).toBeCloseTo((VON_KARMAN * e.frictionVelocity_m_s * 50 * (1 - 50 / 400) ** 2) / (1 + (5 * 50) / L), 12);
     const b = verticalProfileSettings(weather('B', 5, 1200), 'rural');
     const scaleAt = (z: number) => verticalDiffusivityAt_m2_s(b, z) / (VON_KARMAN * z * (1 - z / 1200) ** 2);
-    expect(scaleAt(300)).toBeCloseTo(scaleAt(120), 12);
-    expect(scaleAt(60)).toBeLessThan(scaleAt(120));
+    expect(scaleAt(300)).toBeCloseTo(scaleAt(130), 12);
+    expect(scaleAt(300)).toBeCloseTo(outerLayerVelocityScale_m_s(b.frictionVelocity_m_s, b.inverseObukhov_per_m, 1200), 12);
+    expect(scaleAt(60)).toBeCloseTo(b.frictionVelocity_m_s * Math.sqrt(1 - (16 * 60) * b.inverseObukhov_per_m), 12);
+  });
+
+  it('Holtslag & Boville (1993) outer scale, worked by hand (from memory): w_m, Pr, w_t = w_m / Pr', () => {
+    // u* = 0.5 m/s, L = -20 m, h = 1000 m: w*^3 = u*^3 h / (kappa |L|) = 0.125 * 1000 / 8 = 15.625 -> w* = 2.5 m/s;
+    // w_m^3 = 0.125 + 7 * 0.1 * 0.4 * 15.625 = 4.5 -> w_m = 1.6510 m/s; zeta = 0.1 h / L = -5, 1 - 16 zeta = 81:
+    // phi_h = 1/9, phi_m = 1/3, Pr = 1/3 + 7.2 * 0.4 * 0.1 * 2.5 / 1.6510 = 0.3333 + 0.4361 = 0.7694.
+    const wm = Math.cbrt(4.5);
+    expect(outerLayerVelocityScale_m_s(0.5, -1 / 20, 1000)).toBeCloseTo(wm / (1 / 3 + (7.2 * 0.4 * 0.1 * 2.5) / wm), 12);
+    expect(outerLayerVelocityScale_m_s(0.5, -1 / 20, 1000)).toBeCloseTo(2.146, 3);
+    // w_m is u* / phi_m(0.1 h / L) with the free-convection phi_m = (1 - 7 zeta)^(-1/3): 0.5 * 36^(1/3)
+    expect(wm).toBeCloseTo(0.5 * Math.cbrt(36), 12);
+    // proportional to u* at a fixed L (what keeps the closure linear in the wind speed)
+    expect(outerLayerVelocityScale_m_s(1.5, -1 / 20, 1000) / outerLayerVelocityScale_m_s(0.5, -1 / 20, 1000)).toBeCloseTo(3, 12);
+    expect(() => outerLayerVelocityScale_m_s(0.5, 0.01, 1000)).toThrow(/inverseObukhov_per_m: 0.01/);
+    expect(phiMomentum(-5)).toBeCloseTo(1 / 3, 12);
+    expect(phiMomentum(0.2)).toBeCloseTo(2, 12);
   });
 
   it('falls to the background at the ground face, at and above the mixing height', () => {
