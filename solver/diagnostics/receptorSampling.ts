@@ -62,10 +62,11 @@ export function sampleField(grid: LocalGrid, layout: PaddedLayout, field: Float6
  * The field at one height in every column, index i + nx * j, times a unit factor.
  *
  * @param scale factor applied to every value (1e6 for g/m3 -> ug/m3)
+ * @param out where to write (length nx * ny), default a new array
  */
-export function fieldAtHeight(grid: LocalGrid, layout: PaddedLayout, field: Float64Array, height_m: number, scale = 1): Float64Array {
+export function fieldAtHeight(grid: LocalGrid, layout: PaddedLayout, field: Float64Array, height_m: number, scale = 1, out = new Float64Array(grid.nx * grid.ny)): Float64Array {
   const { layer, upperWeight } = layerInterpolation(grid, height_m);
-  const out = new Float64Array(grid.nx * grid.ny);
+  if (out.length !== grid.nx * grid.ny) throw new RangeError(`out has ${out.length} values; the grid has nx * ny = ${grid.nx * grid.ny} columns`);
   for (let j = 0; j < grid.ny; j++) {
     const lower = paddedIndex(layout, 0, j, layer);
     const upper = upperWeight === 0 ? lower : paddedIndex(layout, 0, j, layer + 1);

@@ -82,10 +82,11 @@ export function marchGridPeriod(run: GridTransientRun, weather: ResolvedWeather,
   });
   const grid = input.grid;
   const groundSum = new Float64Array(grid.nx * grid.ny);
+  const groundNow = new Float64Array(grid.nx * grid.ny);
   const receptorSum = new Float64Array(input.receptors.length);
   let weightSum = 0;
   let previousTime = model.clock.time_s;
-  // Trapezoid-free step mean: each step's end value weighted by its length (first order, exact for steady fields).
+  // Step mean: each step's end value weighted by the step's length (first order in dt; exact for a steady field).
   const averager: Callback = {
     name: 'PeriodAverager',
     schedule: { kind: 'iterations', every: 1 },
@@ -93,7 +94,7 @@ export function marchGridPeriod(run: GridTransientRun, weather: ResolvedWeather,
       const m = simulation.model;
       const weight = m.clock.time_s - previousTime;
       previousTime = m.clock.time_s;
-      const ground = fieldAtHeight(grid, m.layout, m.field, input.groundLevelHeight_m);
+      const ground = fieldAtHeight(grid, m.layout, m.field, input.groundLevelHeight_m, 1, groundNow);
       for (let n = 0; n < ground.length; n++) groundSum[n] += weight * ground[n];
       input.receptors.forEach((receptor, n) => {
         const value = sampleField(grid, m.layout, m.field, receptor.x_m, receptor.y_m, receptor.height_m);
