@@ -111,11 +111,11 @@ describe('deriveDomain', () => {
 });
 
 describe('grid memory', () => {
-  it('estimates cells x 8 arrays x 8 bytes', () => {
-    // 200 x 200 x 24 cells, 8 float64 arrays each (the stated factor).
-    expect(GRID_ARRAYS_PER_CELL).toBe(8);
+  it('estimates cells x 16 arrays x 8 bytes', () => {
+    // 200 x 200 x 24 cells, 16 float64 arrays each (the stated factor).
+    expect(GRID_ARRAYS_PER_CELL).toBe(16);
     expect(estimateGridMemory_bytes({ halfWidth_m: 5000, spacing_m: 50, height_m: 1000, layers: 24 })).toBe(
-      200 * 200 * 24 * 8 * 8,
+      200 * 200 * 24 * 16 * 8,
     );
     expect(GRID_MEMORY_LIMIT_bytes).toBe(4 * 1024 ** 3);
   });
@@ -126,11 +126,11 @@ describe('grid memory', () => {
     const huge = { halfWidth_m: 10_000, spacing_m: 5, height_m: 1000, layers: 30 };
     expect(() => checkGridMemory(huge)).toThrow(RangeError);
     expect(() => checkGridMemory(huge)).toThrow(
-      /^domain: .*4000 x 4000 x 30 = 480000000 cells, about 28\.6 GiB \(30720000000 bytes .*allowed: at most 4\.00 GiB \(4294967296 bytes\)/,
+      /^domain: .*4000 x 4000 x 30 = 480000000 cells, about 57\.2 GiB \(61440000000 bytes .*allowed: at most 4\.00 GiB \(4294967296 bytes\)/,
     );
-    // Just over and just under the limit: 4 GiB / 64 B = 2^26 cells.
-    expect(() => checkGridMemory({ halfWidth_m: 1024, spacing_m: 1, height_m: 100, layers: 16 })).not.toThrow();
-    expect(() => checkGridMemory({ halfWidth_m: 1024, spacing_m: 1, height_m: 100, layers: 17 })).toThrow(/^domain: /);
+    // Just under and just over the limit: 4 GiB / 128 B = 2^25 cells = 2048 x 2048 x 8.
+    expect(() => checkGridMemory({ halfWidth_m: 1024, spacing_m: 1, height_m: 100, layers: 8 })).not.toThrow();
+    expect(() => checkGridMemory({ halfWidth_m: 1024, spacing_m: 1, height_m: 100, layers: 9 })).toThrow(/^domain: /);
   });
 
   it('checks the domain fields first, naming them', () => {
