@@ -28,6 +28,8 @@ export interface GridSteadyOptions {
   maxSweeps?: number;
   /** inflow background [g/m3], default 0 */
   background_g_m3?: number;
+  /** sweep only the layers below the lid where nothing can reach above it (default true; same answer) */
+  lidLimited?: boolean;
 }
 
 /** Release height of each source: effective height (plume rise) for stacks, releaseHeight_m for areas [m]. */
@@ -164,7 +166,7 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
       throw new RangeError(`receptors[${n}] (${receptor.id}): ${(error as Error).message}`);
     }
   });
-  const report = solveSteadyState(model, { tolerance, maxSweeps: options.maxSweeps, control });
+  const report = solveSteadyState(model, { tolerance, maxSweeps: options.maxSweeps, lidLimited: options.lidLimited, control });
 
   const rates = steadyBudgetRates_g_s(model);
   const heldMass_g = paddedFieldMass_g(model.layout, grid, model.field);
@@ -191,7 +193,8 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
   }));
   const lidFace = model.physics.lidFace;
   const notes = [
-    `grid mode: steady state by downwind block Gauss-Seidel sweeps with Anderson mixing, ${report.sweeps} sweeps, ` +
+    `grid mode: steady state by downwind block Gauss-Seidel sweeps with Anderson mixing, ${report.sweeps} sweeps` +
+      `, ${report.layersSolved < grid.nz ? `layers below the lid only (${report.layersSolved} of ${grid.nz}), ` : ''}` +
       `last relative change ${report.lastChange.toExponential(2)} (tolerance ${tolerance.toExponential(0)})` +
       (report.converged ? '' : '; NOT CONVERGED within the sweep limit, figures are approximate'),
     `advection ${model.advection.name}; diffusivities ${model.closure.name}`,

@@ -31,6 +31,11 @@ export interface SteadySolveOptions {
   minSweeps?: number;
   /** Anderson mixing depth, default ANDERSON_DEPTH; 0 = plain sweeps */
   andersonDepth?: number;
+  /**
+   * Solve only the layers below the no-flux lid when nothing can reach the layers above it (default true;
+   * see {@link layersBelowLidToSolve}). The answer is the same: those layers hold exactly zero either way.
+   */
+  lidLimited?: boolean;
   control?: RunControl;
 }
 
@@ -44,6 +49,29 @@ export interface SteadySolveReport {
   /** observed contraction factor per sweep (ratio of the last two changes) */
   contraction: number;
   tolerance: number;
+  /** layers swept (the lowest ones); fewer than nz when the solve was limited to the layers below the lid */
+  layersSolved: number;
+}
+
+/**
+ * How many of the lowest layers can hold pollutant in the steady state: the layers below the no-flux lid
+ * when every source cell is below it, no vertical wind crosses any face (so no advective flux through the
+ * lid and no limited slope reading across it) and the inflow background is zero. The layers above then
+ * have no source, take in only zero from the sides and exchange nothing through the lid: their steady
+ * value is exactly zero, and sweeping them changes nothing. Otherwise all nz layers.
+ */
+export function layersBelowLidToSolve(model: DispersionModel): number {
+  const { physics, grid, layout } = model;
+  const lidFace = physics.lidFace;
+  if (lidFace >= grid.nz) return grid.nz;
+  const lateral = model.boundaries.lateral;
+  if (lateral.kind === 'open' && lateral.background_g_m3 !== 0) return grid.nz;
+  for (let f = 0; f <= grid.nz; f++) if (physics.w_m_s[f] !== 0) return grid.nz;
+  const firstAboveLid = lidFace * layout.planeStride;
+  for (let n = 0; n < physics.sourceCells.length; n++) {
+    if (physics.sourceCells[n] >= firstAboveLid && physics.sourceRates_g_s[n] !== 0) return grid.nz;
+  }
+  return lidFace;
 }
 
 interface SteadyCoefficients {
@@ -73,9 +101,10 @@ interface SteadyCoefficients {
   verticalAdvection: boolean;
 }
 
-function steadyCoefficients(physics: StepPhysics): SteadyCoefficients {
+function steadyCoefficients(physics: StepPhysics, layers: number): SteadyCoefficients {
   const { grid, layout } = physics;
-  const { nz } = grid;
+  // Only the lowest `layers` layers are swept (all of them unless the solve is limited to the lid).
+  const nz = layers;
   const dx = grid.spacing_m;
   const alpha = 0.5 * physics.limitedSlopeWeight;
   const perLayer = (): Float64Array => new Float64Array(nz);
@@ -123,6 +152,7 @@ function steadyCoefficients(physics: StepPhysics): SteadyCoefficients {
   }
   diagonal[0] += physics.depositionVelocity_m_s / grid.dz_m[0];
   for (let f = 1; f < nz; f++) {
+    // (with nz = the lid face, the lid's own face is not among these: it carries nothing anyway)
     const conductance = f === physics.lidFace ? 0 : physics.vertical_m2_s[f] / (grid.zCentres_m[f] - grid.zCentres_m[f - 1]);
     const w = physics.w_m_s[f];
     const wPlus = Math.max(w, 0);
@@ -328,7 +358,8 @@ function leastSquares(gram: Float64Array[], rhs: Float64Array, m: number): Float
 
 /**
  * Drive the model's field to the steady state of its current parts (sources, wind, closure, losses,
- * boundaries), starting from whatever the field holds. The budget tally is not touched (see
+ * boundaries), starting from whatever the field holds (zero for a cold start; a warm start puts a nearby
+ * solution there first, see ../drivers/gridSteady.ts). The budget tally is not touched (see
  * ../drivers/gridSteady.ts).
  *
  * Each sweep is a fixed-point map x -> G(x) whose fixed point is the steady solution. Its slow modes (the
@@ -346,9 +377,12 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
     throw new RangeError(`andersonDepth is ${depth}; allowed: an integer from 0 to ${MAX_ANDERSON_DEPTH}`);
   }
   const physics = model.physics;
-  const coefficients = steadyCoefficients(physics);
   const { grid, layout } = model;
+  const layersSolved = options.lidLimited === false ? grid.nz : layersBelowLidToSolve(model);
+  const coefficients = steadyCoefficients(physics, layersSolved);
   const field = model.field;
+  // Above the lid the steady value is zero (a warm start may have brought something there).
+  if (layersSolved < grid.nz) field.fill(0, layersSolved * layout.planeStride);
   const correction = model.spare;
   const column = new Float64Array(grid.nz);
   const sourceDensities = new Float64Array(physics.sourceCells.length);
@@ -368,8 +402,9 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   const signal = options.control?.signal;
   const onProgress = options.control?.onProgress;
 
-  const size = layout.size;
   const planeStride = layout.planeStride;
+  // The mixing works on the solved layers only (the rest stays zero).
+  const size = layersSolved < grid.nz ? layersSolved * planeStride : layout.size;
   const iterate = new Float64Array(size);
   const previousResidual = new Float64Array(size);
   const previousImage = new Float64Array(size);
@@ -390,7 +425,7 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   let sweeps = 0;
   let converged = false;
   fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
-  iterate.set(field);
+  iterate.set(field.subarray(0, size));
   while (sweeps < maxSweeps) {
     if (signal?.aborted) {
       const error = new Error('grid steady solve aborted');
@@ -417,7 +452,7 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
     const newestImage = mixing ? imageDifferences[newest] : null;
     let change = 0;
     let norm = 0;
-    for (let k = 0; k < grid.nz; k++) {
+    for (let k = 0; k < layersSolved; k++) {
       const from = k * planeStride;
       const to = from + planeStride;
       let layerChange = 0;
@@ -484,9 +519,9 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
         iterate[n] = clipped;
       }
     } else {
-      iterate.set(field);
+      iterate.set(field.subarray(0, size));
     }
   }
   fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
-  return { sweeps, converged, lastChange, estimatedError, contraction, tolerance };
+  return { sweeps, converged, lastChange, estimatedError, contraction, tolerance, layersSolved };
 }

@@ -1,0 +1,72 @@
+/**
+ * Speed-ups of the grid steady solve for series: the solve limited to the layers below the no-flux lid
+ * (the layers above hold exactly zero, so the answer must not change).
+ * Behaviour checks against the plain solve of the same discrete equations (solver/timestepping/steadySweep.ts).
+ */
+import { describe, expect, it } from 'vitest';
+import { solveGridSteadyDetailed } from '../../../solver/drivers/gridSteady.ts';
+import type { PlacedPointSource, ResolvedWeather, SteadyRunInput } from '../../../solver/drivers/types.ts';
+import { layersBelowLidToSolve } from '../../../solver/timestepping/steadySweep.ts';
+import { testGrid } from '../verification/testGrid.ts';
+
+const weather: ResolvedWeather = {
+  windSpeed_m_s: 3,
+  windFrom_deg: 250,
+  stability: 'E',
+  mixingHeight_m: 200,
+  rain_mm_h: 0,
+  airTemperature_K: 283,
+  anemometerHeight_m: 10,
+  calm: false,
+};
+
+const stack: PlacedPointSource = {
+  kind: 'point', id: 'stack', x_m: -300, y_m: -200, height_m: 30, diameter_m: 1, exitVelocity_m_s: 8, exitTemperature_K: 400, emission_g_s: 1, plumeRise: true,
+};
+
+function input(overrides: Partial<ResolvedWeather> = {}): SteadyRunInput {
+  return {
+    grid: testGrid({ nx: 40, ny: 40, nz: 16, height_m: 800, spacing_m: 50 }),
+    sources: [stack],
+    receptors: [200, 500, 800].map((x) => ({ id: `r${x}`, x_m: x, y_m: 0, height_m: 1.5 })),
+    pollutant: { name: 'tracer', halfLife_h: null, washout: null, depositionVelocity_m_s: 0 },
+    weather: { ...weather, ...overrides },
+    dispersion: { kind: 'stability', curves: 'briggs' },
+    landUse: 'rural',
+    windProfile: 'powerLaw',
+    groundLevelHeight_m: 1.5,
+  };
+}
+
+function maxRelativeDifference(a: ArrayLike<number>, b: ArrayLike<number>, floor: number): number {
+  let largest = 0;
+  for (let n = 0; n < a.length; n++) largest = Math.max(largest, Math.abs(a[n] - b[n]) / Math.max(Math.abs(b[n]), floor));
+  return largest;
+}
+
+describe('lid-limited steady solve', () => {
+  it('sweeps only the layers below a 200 m lid and gives the full solve\'s answer (to 1e-12 relative)', () => {
+    const full = solveGridSteadyDetailed(input(), {}, { lidLimited: false });
+    const limited = solveGridSteadyDetailed(input());
+    // 50 m layers, lid at 200 m: 4 layers of 16 below it.
+    expect(full.report.layersSolved).toBe(16);
+    expect(limited.report.layersSolved).toBe(4);
+    expect(layersBelowLidToSolve(limited.model)).toBe(4);
+    expect(limited.report.sweeps).toBe(full.report.sweeps);
+    const peak = Math.max(...full.result.groundLevel_ug_m3);
+    expect(peak).toBeGreaterThan(0);
+    expect(maxRelativeDifference(limited.result.groundLevel_ug_m3, full.result.groundLevel_ug_m3, 1e-9 * peak)).toBeLessThan(1e-12);
+    expect(maxRelativeDifference(limited.result.receptors_ug_m3, full.result.receptors_ug_m3, 1e-30)).toBeLessThan(1e-12);
+    // above the lid the field is zero in both; the budgets agree
+    const above = 4 * limited.model.layout.planeStride;
+    expect(full.model.field.subarray(above).every((value) => value === 0)).toBe(true);
+    expect(Math.abs(limited.result.massBudget_g!.outflow - full.result.massBudget_g!.outflow)).toBeLessThan(1e-12 * full.result.massBudget_g!.emitted);
+  });
+
+  it('solves every layer when something can reach above the lid (inflow background, or a release above it)', () => {
+    const withBackground = solveGridSteadyDetailed(input(), {}, { background_g_m3: 1e-9, maxSweeps: 3 });
+    expect(withBackground.report.layersSolved).toBe(16);
+    const highRelease = solveGridSteadyDetailed({ ...input(), sources: [{ ...stack, height_m: 300, plumeRise: false }] }, {}, { maxSweeps: 3 });
+    expect(highRelease.report.layersSolved).toBe(16);
+  });
+});
