@@ -28,6 +28,12 @@ export interface GridSteadyOptions {
   maxSweeps?: number;
   /** inflow background [g/m3], default 0 */
   background_g_m3?: number;
+  /**
+   * Warm start [g/m3]: a first guess of the 3-D field in the padded layout (../fields/paddedLayout.ts),
+   * e.g. a nearby weather state's solution; copied, not kept. Default: an empty field (cold start).
+   * The answer is the same steady state to within the tolerance; only the sweeps needed change.
+   */
+  initialField_g_m3?: Float64Array;
   /** sweep only the layers below the lid where nothing can reach above it (default true; same answer) */
   lidLimited?: boolean;
 }
@@ -166,6 +172,12 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
       throw new RangeError(`receptors[${n}] (${receptor.id}): ${(error as Error).message}`);
     }
   });
+  if (options.initialField_g_m3 !== undefined) {
+    if (options.initialField_g_m3.length !== model.layout.size) {
+      throw new RangeError(`initialField_g_m3 has ${options.initialField_g_m3.length} values; allowed: the padded layout's ${model.layout.size}`);
+    }
+    model.field.set(options.initialField_g_m3);
+  }
   const report = solveSteadyState(model, { tolerance, maxSweeps: options.maxSweeps, lidLimited: options.lidLimited, control });
 
   const rates = steadyBudgetRates_g_s(model);
@@ -194,6 +206,7 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
   const lidFace = model.physics.lidFace;
   const notes = [
     `grid mode: steady state by downwind block Gauss-Seidel sweeps with Anderson mixing, ${report.sweeps} sweeps` +
+      (options.initialField_g_m3 !== undefined ? ' from a warm start' : '') +
       `, ${report.layersSolved < grid.nz ? `layers below the lid only (${report.layersSolved} of ${grid.nz}), ` : ''}` +
       `last relative change ${report.lastChange.toExponential(2)} (tolerance ${tolerance.toExponential(0)})` +
       (report.converged ? '' : '; NOT CONVERGED within the sweep limit, figures are approximate'),
@@ -230,4 +243,88 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
  */
 export function solveGridSteady(input: SteadyRunInput, control: RunControl = {}): SteadyFieldResult {
   return solveGridSteadyDetailed(input, control).result;
+}
+
+/** Tolerance of the steady solves of an hour-by-hour series (relative change per sweep; 1e-6 for single runs). */
+export const SERIES_STEADY_TOLERANCE = 1e-4;
+
+export interface WarmStartSolverOptions extends Omit<GridSteadyOptions, 'initialField_g_m3'> {
+  /** relative tolerance, default SERIES_STEADY_TOLERANCE (1e-4) */
+  tolerance?: number;
+  /** solved fields kept as warm starts (float32, about 0.9 MB each on the demo grid), default WARM_START_FIELDS */
+  keptFields?: number;
+}
+
+/** How many solved fields a warm-start solver keeps to start from. */
+export const WARM_START_FIELDS = 48;
+
+interface KeptField {
+  weather: ResolvedWeather;
+  field_g_m3: Float32Array;
+}
+
+/**
+ * How far apart two weather states are for a warm start: infinite for different wind directions (the
+ * plume would point elsewhere; an empty start is better), otherwise a sum of relative differences of
+ * speed, mixing height and air temperature, plus one for a different stability class.
+ */
+export function warmStartDistance(a: ResolvedWeather, b: ResolvedWeather): number {
+  if (a.windFrom_deg !== b.windFrom_deg) return Infinity;
+  return (
+    (a.stability === b.stability ? 0 : 1) +
+    Math.abs(Math.log(a.windSpeed_m_s / b.windSpeed_m_s)) +
+    Math.abs(Math.log(a.mixingHeight_m / b.mixingHeight_m)) +
+    Math.abs(a.airTemperature_K - b.airTemperature_K) / 30 +
+    Math.abs(a.rain_mm_h - b.rain_mm_h)
+  );
+}
+
+/**
+ * A grid steady solver for a sequence of related weather states (the hours of a series). Each solve
+ * starts from the nearest state already solved (same wind direction; closest stability, speed, mixing
+ * height, temperature: {@link warmStartDistance}), its 3-D field rescaled by the ratio of the wind speeds
+ * (a plume's concentration goes as 1 / u), instead of from an empty domain; with no solved state of that
+ * direction it starts empty. The answer is the same steady state to within the tolerance; only the sweeps
+ * needed change. It keeps the last `keptFields` fields, so keep one solver per series (or per worker).
+ *
+ * @param options tolerance (default SERIES_STEADY_TOLERANCE), keptFields, maxSweeps, background_g_m3, lidLimited
+ * @returns a function of (input, control) like solveGridSteady
+ * @example const solve = createWarmStartGridSolver(); for (const input of hours) results.push(solve(input));
+ */
+export function createWarmStartGridSolver(options: WarmStartSolverOptions = {}): (input: SteadyRunInput, control?: RunControl) => SteadyFieldResult {
+  const tolerance = options.tolerance ?? SERIES_STEADY_TOLERANCE;
+  const keptFields = options.keptFields ?? WARM_START_FIELDS;
+  if (!Number.isInteger(keptFields) || keptFields < 0) {
+    throw new RangeError(`keptFields is ${keptFields}; allowed: an integer >= 0`);
+  }
+  const kept: KeptField[] = [];
+  let warm: Float64Array | null = null;
+  return (input, control = {}) => {
+    let nearest: KeptField | null = null;
+    let nearestDistance = Infinity;
+    for (const candidate of kept) {
+      const distance = warmStartDistance(candidate.weather, input.weather);
+      if (distance < nearestDistance) {
+        nearest = candidate;
+        nearestDistance = distance;
+      }
+    }
+    let initialField_g_m3: Float64Array | undefined;
+    if (nearest !== null) {
+      if (warm === null || warm.length !== nearest.field_g_m3.length) warm = new Float64Array(nearest.field_g_m3.length);
+      const scale = nearest.weather.windSpeed_m_s / input.weather.windSpeed_m_s;
+      const from = nearest.field_g_m3;
+      for (let n = 0; n < warm.length; n++) warm[n] = from[n] * scale;
+      initialField_g_m3 = warm;
+    }
+    const detail = solveGridSteadyDetailed(input, control, { ...options, tolerance, initialField_g_m3 });
+    if (keptFields > 0) {
+      // Oldest out; the fresh field goes to the end (the most recent weather is the likeliest neighbour).
+      const reused = kept.length >= keptFields ? (kept.shift() as KeptField) : null;
+      const field_g_m3 = reused !== null && reused.field_g_m3.length === detail.model.field.length ? reused.field_g_m3 : new Float32Array(detail.model.field.length);
+      field_g_m3.set(detail.model.field);
+      kept.push({ weather: input.weather, field_g_m3 });
+    }
+    return detail.result;
+  };
 }

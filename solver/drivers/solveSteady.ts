@@ -5,7 +5,7 @@
  */
 import type { SolverMode } from '../../scenario/types.ts';
 import { runGaussianSteady } from './gaussianSteady.ts';
-import { solveGridSteady } from './gridSteady.ts';
+import { createWarmStartGridSolver, solveGridSteady, type WarmStartSolverOptions } from './gridSteady.ts';
 import type { RunControl, SteadyFieldResult, SteadyRunInput } from './types.ts';
 
 /** The shape of a steady solver; `solveSteady` is the in-process one. */
@@ -49,4 +49,21 @@ export async function solveSteady(
     default:
       throw new RangeError(`solver.mode: ${JSON.stringify(mode)} is not a mode; allowed: "grid" or "gaussian"`);
   }
+}
+
+/**
+ * A steady solver for the many related solves of a series: grid solves start warm from the nearest
+ * weather state already solved and stop at the series tolerance (SERIES_STEADY_TOLERANCE, 1e-4 relative
+ * change per sweep, unless given); Gaussian solves are as in {@link solveSteady}. It holds solved fields,
+ * so make one per series run.
+ *
+ * @param options tolerance and the other warm-start options (see createWarmStartGridSolver)
+ * @example const solve = createSeriesSteadySolver(); await solve(input, 'grid');
+ */
+export function createSeriesSteadySolver(options: WarmStartSolverOptions = {}): SteadySolver {
+  const warmGrid = createWarmStartGridSolver(options);
+  return async (input, mode, control = {}) => {
+    control.signal?.throwIfAborted();
+    return mode === 'grid' ? warmGrid(input, control) : solveSteady(input, mode, control);
+  };
 }

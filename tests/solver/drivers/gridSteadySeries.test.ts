@@ -1,10 +1,11 @@
 /**
  * Speed-ups of the grid steady solve for series: the solve limited to the layers below the no-flux lid
- * (the layers above hold exactly zero, so the answer must not change).
+ * (the layers above hold exactly zero, so the answer must not change), and the warm start (a first guess
+ * from a nearby solved weather state: the same steady state within the tolerance, in fewer sweeps).
  * Behaviour checks against the plain solve of the same discrete equations (solver/timestepping/steadySweep.ts).
  */
 import { describe, expect, it } from 'vitest';
-import { solveGridSteadyDetailed } from '../../../solver/drivers/gridSteady.ts';
+import { createWarmStartGridSolver, solveGridSteadyDetailed, warmStartDistance } from '../../../solver/drivers/gridSteady.ts';
 import type { PlacedPointSource, ResolvedWeather, SteadyRunInput } from '../../../solver/drivers/types.ts';
 import { layersBelowLidToSolve } from '../../../solver/timestepping/steadySweep.ts';
 import { testGrid } from '../verification/testGrid.ts';
@@ -68,5 +69,34 @@ describe('lid-limited steady solve', () => {
     expect(withBackground.report.layersSolved).toBe(16);
     const highRelease = solveGridSteadyDetailed({ ...input(), sources: [{ ...stack, height_m: 300, plumeRise: false }] }, {}, { maxSweeps: 3 });
     expect(highRelease.report.layersSolved).toBe(16);
+  });
+});
+
+describe('warm-start grid solver', () => {
+  it('a warm start from a nearby state gives the cold answer within the tolerance, in fewer sweeps', () => {
+    const tolerance = 1e-6;
+    const neighbour = input({ windSpeed_m_s: 3.5, airTemperature_K: 284 });
+    const target = input();
+    const solve = createWarmStartGridSolver({ tolerance });
+    solve(neighbour);
+    const warm = solve(target);
+    const cold = solveGridSteadyDetailed(target, {}, { tolerance });
+    expect(warm.notes[0]).toContain('from a warm start');
+    expect(warm.steps).toBeLessThan(cold.result.steps);
+    // Both stop at 1e-6 relative change per sweep; their receptor values agree to well under 1e-4.
+    expect(maxRelativeDifference(warm.receptors_ug_m3, cold.result.receptors_ug_m3, 1e-30)).toBeLessThan(1e-4);
+    expect(Math.abs(warm.massBudget_g!.relativeImbalance)).toBeLessThan(1e-4);
+  });
+
+  it('starts empty for a different wind direction and keeps no more fields than asked', () => {
+    expect(warmStartDistance(weather, { ...weather, windFrom_deg: 260 })).toBe(Infinity);
+    expect(warmStartDistance(weather, weather)).toBe(0);
+    const solve = createWarmStartGridSolver({ keptFields: 0, tolerance: 1e-4 });
+    solve(input());
+    expect(solve(input()).notes[0]).not.toContain('warm start');
+    const directional = createWarmStartGridSolver({ tolerance: 1e-4 });
+    directional(input());
+    expect(directional(input({ windFrom_deg: 200 })).notes[0]).not.toContain('warm start');
+    expect(() => createWarmStartGridSolver({ keptFields: -1 })).toThrow(/keptFields is -1/);
   });
 });
