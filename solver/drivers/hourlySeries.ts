@@ -37,7 +37,7 @@ import { CALM_THRESHOLD_m_s, resolveWeatherWithSource, type StabilitySource } fr
 import { parseIsoTime } from '../meteorology/time.ts';
 import { windRoseFromHours, type WindRoseTable } from '../meteorology/windRoseTable.ts';
 import { windRoseSvg } from '../../results/windRoseSvg.ts';
-import { solveSteady, type SteadySolver } from './solveSteady.ts';
+import { createSeriesSteadySolver, type SteadySolver } from './solveSteady.ts';
 import type {
   MassBudget,
   ReceptorColumn,
@@ -59,7 +59,10 @@ export interface SeriesRunOptions {
   site: { lat: number; lon: number };
   assessment?: Assessment;
   control?: RunControl;
-  /** the steady solver; default solveSteady (in process) */
+  /**
+   * the steady solver; default for an hourly series: createSeriesSteadySolver() (in process, grid solves
+   * warm-started at the series tolerance 1e-4); for a wind rose: solveSteady
+   */
   solve?: SteadySolver;
   /** extra summary entries from the caller (e.g. the domain), merged first */
   extraSummary?: Record<string, unknown>;
@@ -556,7 +559,7 @@ export async function runHourlySeries(
   if (options.method === 'independentHours') {
     const rules = reuseRules(base, options.speedScaling ?? true);
     const fields = await solveWithReuse(base, resolved, options.mode, {
-      solve: options.solve ?? solveSteady,
+      solve: options.solve ?? createSeriesSteadySolver(),
       rules,
       control,
       label: 'hour',
