@@ -5,7 +5,7 @@
 import { parseScenario } from '../../../scenario/schema.ts';
 import type { Scenario } from '../../../scenario/types.ts';
 import { prepareScenarioGeometry } from '../../../solver/grid/scenarioGeometry.ts';
-import { GROUND_LEVEL_HEIGHT_m } from '../../../solver/drivers/steadyScenario.ts';
+import { seriesBaseInput } from '../../../solver/drivers/runScenario.ts';
 import type { SeriesBaseInput } from '../../../solver/drivers/hourlySeries.ts';
 
 export const SITE = { lat: 52.31, lon: 4.62, landUse: 'rural' as const };
@@ -47,19 +47,9 @@ export function seriesScenario(overrides: Record<string, unknown> = {}, domain =
   return parsed.scenario;
 }
 
-/** Everything but the weather, placed on the grid. */
+/** Everything but the weather, placed on the grid (the same assembly runScenario uses). */
 export function baseInput(scenario: Scenario): SeriesBaseInput {
-  const geometry = prepareScenarioGeometry(scenario);
-  return {
-    grid: geometry.grid,
-    sources: geometry.sources,
-    receptors: geometry.receptors,
-    pollutant: scenario.pollutant,
-    dispersion: scenario.dispersion,
-    landUse: scenario.site.landUse,
-    windProfile: scenario.windProfile,
-    groundLevelHeight_m: GROUND_LEVEL_HEIGHT_m,
-  };
+  return seriesBaseInput(scenario, prepareScenarioGeometry(scenario));
 }
 
 /** n hours from a start, each built by a function of its index. */
