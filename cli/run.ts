@@ -14,6 +14,7 @@ import { formatIssues } from '../scenario/schema.ts';
 import type { Scenario, SolverMode } from '../scenario/types.ts';
 import { runScenario, ScenarioInputError } from '../solver/drivers/runScenario.ts';
 import { solveSteady, UnavailableError, type SteadySolver } from '../solver/drivers/solveSteady.ts';
+import { createSeriesSolverPool } from '../jobs/seriesSolverPool.ts';
 import { solveGridSteadyInWorker } from '../jobs/solveInWorker.ts';
 import type { ScenarioRunResult } from '../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../results/caution.ts';
@@ -99,13 +100,26 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
     const mode = args.mode ?? scenario.solver.mode;
 
     // A single steady grid solve runs in a worker thread (the command stays responsive and Ctrl-C stops
-    // it at once); series make many solves, where starting a thread for each costs more than it gives.
+    // it at once). The many solves of an hour-by-hour series or a wind rose go to a pool of worker
+    // threads, one per core, each warm-starting from its own previous solves.
     const solve = options.solve ?? (scenario.weather.kind === 'steady' ? workerSteadySolver : undefined);
-    const result = await runScenario(scenario, {
-      mode,
-      solve,
-      control: { onProgress: (fraction, message) => progress.update(fraction, message) },
-    });
+    const pooled = options.solve === undefined && usesSeriesPool(scenario);
+    const pool = pooled ? createSeriesSolverPool() : null;
+    const interrupt = new AbortController();
+    const onInterrupt = (): void => interrupt.abort();
+    if (pool !== null) process.once('SIGINT', onInterrupt);
+    let result;
+    try {
+      result = await runScenario(scenario, {
+        mode,
+        solve,
+        seriesSolvers: pool?.solvers,
+        control: { onProgress: (fraction, message) => progress.update(fraction, message), signal: pool !== null ? interrupt.signal : undefined },
+      });
+    } finally {
+      process.off('SIGINT', onInterrupt);
+      await pool?.close();
+    }
     progress.update(1, 'writing the result folder');
     const written = await writeResultFolder(args.outDirectory, scenario, result, { levels_ug_m3: args.levels_ug_m3 });
     progress.finish();
@@ -138,6 +152,12 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
   };
+}
+
+/** Whether a run makes many steady solves that a pool of worker threads should take. */
+function usesSeriesPool(scenario: Scenario): boolean {
+  const weather = scenario.weather;
+  return weather.kind === 'windRose' || (weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours');
 }
 
 /** Exit code of a run stopped by an interrupt (128 + SIGINT, the shell convention). */

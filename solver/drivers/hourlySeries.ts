@@ -37,6 +37,7 @@ import { CALM_THRESHOLD_m_s, resolveWeatherWithSource, type StabilitySource } fr
 import { parseIsoTime } from '../meteorology/time.ts';
 import { windRoseFromHours, type WindRoseTable } from '../meteorology/windRoseTable.ts';
 import { windRoseSvg } from '../../results/windRoseSvg.ts';
+import { releaseHeights_m } from './gridSteady.ts';
 import { createSeriesSteadySolver, type SteadySolver } from './solveSteady.ts';
 import type {
   MassBudget,
@@ -61,9 +62,10 @@ export interface SeriesRunOptions {
   control?: RunControl;
   /**
    * the steady solver; default for an hourly series: createSeriesSteadySolver() (in process, grid solves
-   * warm-started at the series tolerance 1e-4); for a wind rose: solveSteady
+   * warm-started at the series tolerance 1e-4); for a wind rose: solveSteady. An array gives one solver
+   * per lane (see solveWithReuse).
    */
-  solve?: SteadySolver;
+  solve?: SteadySolver | readonly SteadySolver[];
   /** extra summary entries from the caller (e.g. the domain), merged first */
   extraSummary?: Record<string, unknown>;
   /** reuse a solve across wind speeds where that is exact (default true) */
@@ -185,8 +187,12 @@ function storeSolve(result: SteadyFieldResult, windSpeed_m_s: number): StoredSol
 
 /**
  * Solve a list of weather states with exact reuse (shared by hourly series and wind roses).
- * The distinct states are found first, then solved in order, up to `concurrency` at a time (useful
- * when the solver hands solves to worker threads; the in-process solver runs one at a time anyway).
+ * The distinct states are found first, sorted so that neighbouring weather follows each other (same
+ * wind direction and class together; mixing height, rain, speed and temperature ascending), cut into
+ * runs of one direction and class, and solved run by run in `lanes`: each lane takes the next whole run
+ * and solves it in order, so a warm-starting solver always starts from the state just before. With an
+ * array of solvers (a pool, one per worker thread) lane t uses solvers[t]; with one solver,
+ * `concurrency` lanes share it (useful when it hands solves to threads itself).
  *
  * @returns the stored solves and, for each state, which solve and what scale gives its field
  */
@@ -194,9 +200,11 @@ export async function solveWithReuse(
   base: SeriesBaseInput,
   states: readonly ResolvedWeather[],
   mode: SolverMode,
-  options: { solve: SteadySolver; rules: ReuseRules; control: RunControl; label: string; concurrency?: number },
+  options: { solve: SteadySolver | readonly SteadySolver[]; rules: ReuseRules; control: RunControl; label: string; concurrency?: number },
 ): Promise<SeriesFields> {
-  const { solve, rules, control, label } = options;
+  const { rules, control, label } = options;
+  const solvers = Array.isArray(options.solve) ? (options.solve as readonly SteadySolver[]) : null;
+  if (solvers !== null && solvers.length === 0) throw new RangeError('solveWithReuse: the solver list is empty');
   const hasWashout = base.pollutant.washout !== null;
   const byKey = new Map<string, number>();
   const solveOfHour = new Int32Array(states.length);
@@ -216,28 +224,47 @@ export async function solveWithReuse(
   }
 
   const solves: StoredSolve[] = new Array(firstStateOfSolve.length);
+  const stateOfSolve = (index: number): ResolvedWeather => states[firstStateOfSolve[index]];
+  // Within one direction, class, mixing height and rain, the solves differ in the wind speed and the
+  // plume rise it gives: order them by the sources' effective heights, so that a warm-starting solver
+  // can extrapolate from the two solves before (../drivers/gridSteady.ts).
+  const heightsOfSolve = firstStateOfSolve.map((h) => releaseHeights_m(base, states[h]));
+  const solveOrder = Array.from(firstStateOfSolve.keys()).sort(
+    (a, b) => compareWeatherOperator(stateOfSolve(a), stateOfSolve(b)) || compareHeights(heightsOfSolve[a], heightsOfSolve[b]) || compareWeather(stateOfSolve(a), stateOfSolve(b)),
+  );
+  const runs: number[][] = [];
+  for (const index of solveOrder) {
+    const last = runs.length > 0 ? runs[runs.length - 1] : null;
+    const previous = last === null ? null : stateOfSolve(last[last.length - 1]);
+    const weather = stateOfSolve(index);
+    if (last !== null && previous !== null && previous.windFrom_deg === weather.windFrom_deg && previous.stability === weather.stability) last.push(index);
+    else runs.push([index]);
+  }
   const innerControl: RunControl = control.signal ? { signal: control.signal } : {};
-  const concurrency = Math.max(1, Math.floor(options.concurrency ?? 1));
-  let next = 0;
+  const lanes = Math.min(solvers !== null ? solvers.length : Math.max(1, Math.floor(options.concurrency ?? 1)), runs.length);
+  let nextRun = 0;
   let done = 0;
-  const worker = async () => {
-    while (next < firstStateOfSolve.length) {
-      control.signal?.throwIfAborted();
-      const index = next++;
-      const weather = states[firstStateOfSolve[index]];
-      const result = await solve({ ...base, weather }, mode, innerControl);
-      checkShapes(base, result);
-      solves[index] = storeSolve(result, weather.windSpeed_m_s);
-      done++;
-      if (done % 8 === 0 || done === firstStateOfSolve.length) {
-        control.onProgress?.(
-          done / firstStateOfSolve.length,
-          `${label}s: ${done} of ${firstStateOfSolve.length} distinct solves (${states.length} ${label}s)`,
-        );
+  const lane = async (laneIndex: number) => {
+    const solve = solvers !== null ? solvers[laneIndex] : (options.solve as SteadySolver);
+    while (nextRun < runs.length) {
+      const run = runs[nextRun++];
+      for (const index of run) {
+        control.signal?.throwIfAborted();
+        const weather = stateOfSolve(index);
+        const result = await solve({ ...base, weather }, mode, innerControl);
+        checkShapes(base, result);
+        solves[index] = storeSolve(result, weather.windSpeed_m_s);
+        done++;
+        if (done % 8 === 0 || done === firstStateOfSolve.length) {
+          control.onProgress?.(
+            done / firstStateOfSolve.length,
+            `${label}s: ${done} of ${firstStateOfSolve.length} distinct solves (${states.length} ${label}s)`,
+          );
+        }
       }
     }
   };
-  await Promise.all(Array.from({ length: Math.min(concurrency, firstStateOfSolve.length) }, worker));
+  await Promise.all(Array.from({ length: lanes }, (_, t) => lane(t)));
 
   let identicalReuses = 0;
   let scaledReuses = 0;
@@ -257,6 +284,36 @@ export async function solveWithReuse(
     }
   }
   return { solves, solveOfHour, scaleOfHour, identicalReuses, scaledReuses };
+}
+
+const STABILITY_ORDER = 'ABCDEF';
+
+/** Order of weather states by what sets the steady equations at unit speed: direction, class, mixing height, rain. */
+function compareWeatherOperator(a: ResolvedWeather, b: ResolvedWeather): number {
+  return (
+    a.windFrom_deg - b.windFrom_deg ||
+    STABILITY_ORDER.indexOf(a.stability) - STABILITY_ORDER.indexOf(b.stability) ||
+    a.mixingHeight_m - b.mixingHeight_m ||
+    a.rain_mm_h - b.rain_mm_h
+  );
+}
+
+function compareHeights(a: number[], b: number[]): number {
+  for (let n = 0; n < a.length; n++) if (a[n] !== b[n]) return a[n] - b[n];
+  return 0;
+}
+
+/** Order of weather states for solving: direction, class, mixing height, rain, speed, temperature. */
+export function compareWeather(a: ResolvedWeather, b: ResolvedWeather): number {
+  return (
+    a.windFrom_deg - b.windFrom_deg ||
+    STABILITY_ORDER.indexOf(a.stability) - STABILITY_ORDER.indexOf(b.stability) ||
+    a.mixingHeight_m - b.mixingHeight_m ||
+    a.rain_mm_h - b.rain_mm_h ||
+    a.windSpeed_m_s - b.windSpeed_m_s ||
+    a.airTemperature_K - b.airTemperature_K ||
+    a.anemometerHeight_m - b.anemometerHeight_m
+  );
 }
 
 function checkShapes(base: SeriesBaseInput, result: SteadyFieldResult): void {

@@ -28,6 +28,11 @@ export interface RunScenarioOptions {
   control?: RunControl;
   /** the steady solver; default solveSteady (in process); the command line may pass a worker-backed one */
   solve?: SteadySolver;
+  /**
+   * solvers for the many steady solves of an hourly series or a wind rose, one per lane (a pool of
+   * worker threads, say: ../../jobs/seriesSolverPool.ts); default: `solve`, or the series default
+   */
+  seriesSolvers?: readonly SteadySolver[];
 }
 
 /**
@@ -46,7 +51,7 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
   // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
   try {
-    return await dispatchByWeather(scenario, geometry, mode, control, options.solve);
+    return await dispatchByWeather(scenario, geometry, mode, control, options.solve, options.seriesSolvers);
   } catch (error) {
     if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
     throw error;
@@ -59,6 +64,7 @@ async function dispatchByWeather(
   mode: SolverMode,
   control: RunControl,
   solve: SteadySolver | undefined,
+  seriesSolvers: readonly SteadySolver[] | undefined,
 ): Promise<ScenarioRunResult> {
   const domainSummary = { ...geometry.domain, derived: geometry.domainDerived };
   const weather = scenario.weather;
@@ -91,7 +97,7 @@ async function dispatchByWeather(
         site: scenario.site,
         assessment: scenario.assessment,
         control,
-        solve,
+        solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
       });
     }
@@ -101,7 +107,7 @@ async function dispatchByWeather(
         site: scenario.site,
         assessment: scenario.assessment,
         control,
-        solve,
+        solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
       });
     default:

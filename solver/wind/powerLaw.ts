@@ -35,6 +35,17 @@ const URBAN_EXPONENTS: Readonly<Record<StabilityClass, number>> = {
 export const WIND_PROFILE_FLOOR_M = 1;
 
 /**
+ * Highest height the power law is followed to [m]: the mixing height (never below the anemometer).
+ * The law describes the wind in the boundary layer; carried above it, a stable exponent gives winds of
+ * 40-60 m/s at 1 km, which nothing in the weather says and which would set a continuous run's time
+ * step. Above the mixing height the speed at the mixing height is used (plumeplan's choice, stated here
+ * once; it applies to both solver modes alike).
+ */
+export function windProfileTop_m(weather: Pick<ResolvedWeather, 'mixingHeight_m' | 'anemometerHeight_m'>): number {
+  return Math.max(weather.mixingHeight_m, weather.anemometerHeight_m);
+}
+
+/**
  * The power-law exponent for a stability class and land use (Irwin 1979, from memory).
  *
  * @param stability Pasquill class A..F
@@ -58,8 +69,8 @@ export function powerLawExponent(stability: StabilityClass, landUse: LandUse): n
  * Wind speed at a height above ground.
  *
  * - `profile = "uniform"`: the measured speed at every height.
- * - `profile = "powerLaw"`: u(z) = u_ref (max(z, 1 m) / z_ref)^p, p from {@link powerLawExponent}; no upper
- *   cap (the caller decides which height to ask for).
+ * - `profile = "powerLaw"`: u(z) = u_ref (z' / z_ref)^p with z' = z held between 1 m and the mixing height
+ *   (see {@link windProfileTop_m}), p from {@link powerLawExponent}.
  *
  * @param weather resolved weather: windSpeed_m_s [m/s] at anemometerHeight_m [m], stability class
  * @param height_m height above ground [m], >= 0
@@ -89,7 +100,7 @@ export function windSpeedAtHeight_m_s(
     throw new RangeError(`weather.anemometerHeight_m is ${anemometerHeight_m}; allowed: a finite height > 0 m`);
   }
   const exponent = powerLawExponent(weather.stability, landUse);
-  const evaluatedHeight_m = Math.max(height_m, WIND_PROFILE_FLOOR_M);
+  const evaluatedHeight_m = Math.min(Math.max(height_m, WIND_PROFILE_FLOOR_M), windProfileTop_m(weather));
   const referenceHeight_m = Math.max(anemometerHeight_m, WIND_PROFILE_FLOOR_M);
   return windSpeed_m_s * Math.pow(evaluatedHeight_m / referenceHeight_m, exponent);
 }

@@ -1,6 +1,6 @@
 /**
  * Wind with height: power-law exponents (Irwin 1979, Atmos. Environ. 13:191, from memory, via
- * ../shared/REFERENCES.md) and the profile u(z) = u_ref (z / z_ref)^p.
+ * ../shared/REFERENCES.md) and the profile u(z) = u_ref (z / z_ref)^p, held between 1 m and the mixing height.
  */
 import { describe, expect, it } from 'vitest';
 import { WIND_PROFILE_FLOOR_M, powerLawExponent, windSpeedAtHeight_m_s } from '../../../solver/wind/powerLaw.ts';
@@ -44,6 +44,16 @@ describe('windSpeedAtHeight_m_s', () => {
     expect(windSpeedAtHeight_m_s(weather('F'), 0, 'rural', 'powerLaw')).toBe(atFloor);
     expect(windSpeedAtHeight_m_s(weather('F'), 0.3, 'rural', 'powerLaw')).toBe(atFloor);
     expect(atFloor).toBeCloseTo(5 * Math.pow(0.1, 0.55), 12);
+  });
+  it('above the mixing height the speed at the mixing height is used (stated cap)', () => {
+    // E rural, 5 m/s at 10 m, mixing height 800 m: 5 (800/10)^0.35 = 23.12 m/s at and above 800 m (hand-computed)
+    const atTop = windSpeedAtHeight_m_s(weather('E'), 800, 'rural', 'powerLaw');
+    expect(atTop).toBeCloseTo(5 * Math.pow(80, 0.35), 12);
+    expect(windSpeedAtHeight_m_s(weather('E'), 1000, 'rural', 'powerLaw')).toBe(atTop);
+    expect(windSpeedAtHeight_m_s({ ...weather('E'), mixingHeight_m: 200 }, 1000, 'rural', 'powerLaw')).toBeCloseTo(5 * Math.pow(20, 0.35), 12);
+    expect(windSpeedAtHeight_m_s(weather('E'), 799, 'rural', 'powerLaw')).toBeLessThan(atTop);
+    // a mixing height below the anemometer does not move the measurement
+    expect(windSpeedAtHeight_m_s({ ...weather('E'), mixingHeight_m: 5 }, 10, 'rural', 'powerLaw')).toBe(5);
   });
   it('rejects a negative height, a zero wind and an unknown profile', () => {
     expect(() => windSpeedAtHeight_m_s(weather('D'), -2, 'rural', 'powerLaw')).toThrow(/height_m is -2/);
