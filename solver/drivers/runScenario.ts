@@ -4,6 +4,8 @@
  * no process, no console; the command line and the server both call this.
  */
 import type { Scenario, SolverMode } from '../../scenario/types.ts';
+import { SlabPoolExecutor } from '../parallel/slabPool.ts';
+import { MAX_SLABS } from '../timestepping/simd/transportRowModule.ts';
 import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { createGridTransient, marchGridPeriod } from './gridTransient.ts';
@@ -33,6 +35,8 @@ export interface RunScenarioOptions {
    * worker threads, say: ../../jobs/seriesSolverPool.ts); default: `solve`, or the series default
    */
   seriesSolvers?: readonly SteadySolver[];
+  /** threads each step of a continuous grid march is split over (default 1) */
+  stepThreads?: number;
 }
 
 /**
@@ -51,7 +55,7 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
   // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
   try {
-    return await dispatchByWeather(scenario, geometry, mode, control, options.solve, options.seriesSolvers);
+    return await dispatchByWeather(scenario, geometry, mode, control, options);
   } catch (error) {
     if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
     throw error;
@@ -63,9 +67,10 @@ async function dispatchByWeather(
   geometry: ScenarioGeometry,
   mode: SolverMode,
   control: RunControl,
-  solve: SteadySolver | undefined,
-  seriesSolvers: readonly SteadySolver[] | undefined,
+  options: RunScenarioOptions,
 ): Promise<ScenarioRunResult> {
+  const { solve, seriesSolvers } = options;
+  const stepThreads = options.stepThreads ?? 1;
   const domainSummary = { ...geometry.domain, derived: geometry.domainDerived };
   const weather = scenario.weather;
   switch (weather.kind) {
@@ -93,7 +98,7 @@ async function dispatchByWeather(
       return runHourlySeries(seriesBaseInput(scenario, geometry), weather.hours, {
         mode,
         method: scenario.solver.hourlyMethod,
-        continuous: continuousGridSeries,
+        continuous: stepThreads > 1 ? continuousGridSeriesWithThreads(stepThreads) : continuousGridSeries,
         site: scenario.site,
         assessment: scenario.assessment,
         control,
@@ -115,6 +120,9 @@ async function dispatchByWeather(
   }
 }
 
+/** Rows per step thread below which a continuous march stays on one thread. */
+const ROWS_PER_STEP_THREAD = 16;
+
 /** One hour [s]: an hourly record's period. */
 const HOUR_s = 3600;
 
@@ -124,29 +132,50 @@ const HOUR_s = 3600;
  * marched through with the weather of the hour before it, unrecorded, so the field arriving at the next
  * hour has aged by the right time (stated in the notes).
  */
-export const continuousGridSeries: ContinuousSeriesRunner = async (base, hours, hourStarts_ms, control, onHour) => {
-  const run = createGridTransient(base, hours[0]);
+export const continuousGridSeries: ContinuousSeriesRunner = (base, hours, hourStarts_ms, control, onHour) =>
+  continuousGridSeriesOn(1, base, hours, hourStarts_ms, control, onHour);
+
+/**
+ * The continuous method with each step split by rows over `stepThreads` threads (the result is
+ * bit-identical to one thread; ../parallel/slabPool.ts), fewer where the grid has under 16 rows a thread.
+ */
+export function continuousGridSeriesWithThreads(stepThreads: number): ContinuousSeriesRunner {
+  if (!Number.isInteger(stepThreads) || stepThreads < 1) throw new RangeError(`stepThreads is ${stepThreads}; allowed: an integer >= 1`);
+  return (base, hours, hourStarts_ms, control, onHour) => continuousGridSeriesOn(stepThreads, base, hours, hourStarts_ms, control, onHour);
+}
+
+async function continuousGridSeriesOn(
+  stepThreads: number,
+  ...[base, hours, hourStarts_ms, control, onHour]: Parameters<ContinuousSeriesRunner>
+): ReturnType<ContinuousSeriesRunner> {
+  const threads = Math.max(1, Math.min(stepThreads, MAX_SLABS, Math.floor(base.grid.ny / ROWS_PER_STEP_THREAD)));
+  const executor = threads > 1 ? await SlabPoolExecutor.create(threads) : undefined;
+  const run = createGridTransient(base, hours[0], { executor });
   let steps = 0;
   let bridged_h = 0;
   let massBudget: MassBudget | null = null;
   const heightSums = new Float64Array(base.sources.length);
   let firstNote: string | null = null;
-  for (let h = 0; h < hours.length; h += 1) {
-    control.signal?.throwIfAborted();
-    if (h > 0) {
-      const gap_h = Math.round((hourStarts_ms[h] - hourStarts_ms[h - 1]) / (HOUR_s * 1000)) - 1;
-      if (gap_h > 0) {
-        steps += marchGridPeriod(run, hours[h - 1], gap_h * HOUR_s, { signal: control.signal }).steps;
-        bridged_h += gap_h;
+  try {
+    for (let h = 0; h < hours.length; h += 1) {
+      control.signal?.throwIfAborted();
+      if (h > 0) {
+        const gap_h = Math.round((hourStarts_ms[h] - hourStarts_ms[h - 1]) / (HOUR_s * 1000)) - 1;
+        if (gap_h > 0) {
+          steps += marchGridPeriod(run, hours[h - 1], gap_h * HOUR_s, { signal: control.signal }).steps;
+          bridged_h += gap_h;
+        }
       }
+      const period = marchGridPeriod(run, hours[h], HOUR_s, { signal: control.signal });
+      steps += period.steps;
+      massBudget = period.massBudget_g;
+      period.effectiveHeights_m.forEach((height, n) => (heightSums[n] += height));
+      firstNote ??= period.notes[0] ?? null;
+      onHour(h, period.receptorsMean_ug_m3, period.groundLevelMean_ug_m3);
+      control.onProgress?.((h + 1) / hours.length, `hour ${h + 1} of ${hours.length}`);
     }
-    const period = marchGridPeriod(run, hours[h], HOUR_s, { signal: control.signal });
-    steps += period.steps;
-    massBudget = period.massBudget_g;
-    period.effectiveHeights_m.forEach((height, n) => (heightSums[n] += height));
-    firstNote ??= period.notes[0] ?? null;
-    onHour(h, period.receptorsMean_ug_m3, period.groundLevelMean_ug_m3);
-    control.onProgress?.((h + 1) / hours.length, `hour ${h + 1} of ${hours.length}`);
+  } finally {
+    await executor?.close();
   }
   const notes = [`grid mode, continuous time-march of ${hours.length} hours from an empty domain, ${steps} steps in all`];
   if (firstNote !== null) notes.push(`first hour: ${firstNote}`);
@@ -162,7 +191,7 @@ export const continuousGridSeries: ContinuousSeriesRunner = async (base, hours, 
     })),
     notes,
   };
-};
+}
 
 /** Everything a steady solve needs except the weather (what a series runs every hour with). */
 export function seriesBaseInput(scenario: Scenario, geometry: ScenarioGeometry): SeriesBaseInput {

@@ -1,8 +1,9 @@
 /**
  * End to end: the installed command (`node bin/plumeplan.mjs`, what `npx plumeplan` runs) on the demo
- * scenario in Gaussian mode, and its exit codes for help, bad options and a scenario with an error.
+ * scenario in Gaussian and grid mode, on two days of the demo year (solved in the thread pool) and
+ * interrupted during the year, and its exit codes for help, bad options and a scenario with an error.
  */
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -104,6 +105,58 @@ describe('plumeplan run without --mode: grid mode by default', () => {
     expect(summary.run.steps).toBeGreaterThan(0);
     expect(summary.peak.concentration_ug_m3).toBeGreaterThan(0);
   });
+});
+
+describe('plumeplan run on an hourly series in grid mode (the solver thread pool)', () => {
+  const YEAR = path.join(ROOT, 'scenarios', 'merrowdene-heat-plant-year', 'scenario.json');
+
+  it('solves the first two days of the demo year hour by hour and gives the in-process statistics', async () => {
+    const scenario = JSON.parse(readFileSync(YEAR, 'utf8'));
+    delete scenario.$schema;
+    const csv = readFileSync(path.join(path.dirname(YEAR), scenario.weather.csv), 'utf8').split('\n');
+    writeFileSync(path.join(scratch, 'two-days.csv'), csv.slice(0, 1 + 48).join('\n') + '\n');
+    scenario.weather = { kind: 'hourly', csv: 'two-days.csv' };
+    scenario.domain = { halfWidth_m: 3000, spacing_m: 150, height_m: 1000, layers: 12 };
+    const file = path.join(scratch, 'two-days.scenario.json');
+    writeFileSync(file, JSON.stringify(scenario, null, 2));
+    const out = path.join(scratch, 'two-days');
+    const run = plumeplan('run', file, '--out', out);
+    expect(run.status, run.stderr).toBe(0);
+    expect(run.stdout).toContain('grid mode, hourly series, grid 40 x 40 x 12 at 150 m');
+    expect(existsSync(path.join(out, 'windrose.svg'))).toBe(true);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    expect(summary.series.solves).toBeGreaterThan(10);
+    // The same series in process, one solver: the statistics agree to the series tolerance.
+    const { loadScenarioFile } = await import('../../scenario/load.ts');
+    const { runScenario } = await import('../../solver/drivers/runScenario.ts');
+    const loaded = await loadScenarioFile(file);
+    if (!loaded.ok) throw new Error('the two-day scenario does not load');
+    const direct = await runScenario(loaded.scenario);
+    const rows = csvRows(readFileSync(path.join(out, 'receptors.csv'), 'utf8'));
+    const meanColumn = rows[0].indexOf('mean_ug_m3');
+    const directMeans = direct.receptorColumns.find((c) => c.key === 'mean_ug_m3')!.values;
+    expect(rows.length - 1).toBe(directMeans.length);
+    for (let r = 0; r < directMeans.length; r++) {
+      // receptors.csv rounds to 3 significant figures
+      expect(Math.abs(Number(rows[r + 1][meanColumn]) - directMeans[r]) / directMeans[r]).toBeLessThan(5e-3);
+    }
+  }, 60_000);
+
+  it('Ctrl-C (SIGINT) during the demo year stops the pool at once: exit 130, nothing written', async () => {
+    const out = path.join(scratch, 'interrupted-year');
+    const child = spawn(process.execPath, [BIN, 'run', YEAR, '--out', out], { cwd: ROOT, env: { ...process.env, PLUMEPLAN_DEBUG: '' } });
+    let stderr = '';
+    child.stderr.setEncoding('utf8');
+    // interrupt once the solves are under way (the first progress line about distinct solves)
+    child.stderr.on('data', (chunk: string) => {
+      stderr += chunk;
+      if (/distinct solves/.test(stderr) && child.exitCode === null && !child.killed) child.kill('SIGINT');
+    });
+    const code = await new Promise<number | null>((resolve) => child.on('exit', (status) => resolve(status)));
+    expect(code, stderr).toBe(130);
+    expect(stderr).toContain('interrupted; no results written');
+    expect(existsSync(path.join(out, 'summary.json'))).toBe(false);
+  }, 60_000);
 });
 
 describe('plumeplan exit codes', () => {

@@ -115,6 +115,30 @@ describe('warm-start grid solver', () => {
     expect(Math.abs(warm.massBudget_g!.relativeImbalance)).toBeLessThan(1e-4);
   });
 
+  it('with two solves of the same direction, class and mixing height before, starts from their extrapolation in the stack height (secant), in fewer sweeps', () => {
+    // Plume rise goes as 1 / u: three speeds give three effective heights of the one stack; the field
+    // times the speed is a function of that height alone, which the secant start extrapolates.
+    const tolerance = 1e-6;
+    const states = [5, 4.5, 4].map((windSpeed_m_s) => input({ windSpeed_m_s }));
+    const secant = createWarmStartGridSolver({ tolerance });
+    secant(states[0]);
+    secant(states[1]);
+    const fromTwo = secant(states[2]);
+    const nearestOnly = createWarmStartGridSolver({ tolerance });
+    nearestOnly(states[1]);
+    const fromOne = nearestOnly(states[2]);
+    const cold = solveGridSteadyDetailed(states[2], {}, { tolerance, andersonDepth: 0, correctionInterval: 2 });
+    expect(fromTwo.steps).toBeLessThan(fromOne.steps);
+    expect(fromOne.steps).toBeLessThan(cold.result.steps);
+    expect(maxRelativeDifference(fromTwo.receptors_ug_m3, cold.result.receptors_ug_m3, 1e-30)).toBeLessThan(1e-4);
+    expect(maxRelativeDifference(fromOne.receptors_ug_m3, cold.result.receptors_ug_m3, 1e-30)).toBeLessThan(1e-4);
+  });
+
+  it('refreshes the deferred correction every sweep under Anderson mixing (it needs a fixed map)', () => {
+    expect(() => solveGridSteadyDetailed(input(), {}, { andersonDepth: 5, correctionInterval: 2 })).toThrow(/correctionInterval is 2/);
+    expect(() => solveGridSteadyDetailed(input(), {}, { andersonDepth: 0, correctionInterval: 0 })).toThrow(/correctionInterval is 0/);
+  });
+
   it('starts empty for a different wind direction and keeps no more fields than asked', () => {
     expect(warmStartDistance(weather, { ...weather, windFrom_deg: 260 })).toBe(Infinity);
     expect(warmStartDistance(weather, weather)).toBe(0);
