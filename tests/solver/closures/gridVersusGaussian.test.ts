@@ -32,6 +32,11 @@
  * have reached 30 m (about 500 m of travel in C, 2 km in E) while the stack's own plume is younger. The
  * E stack at 5 km is vertical: stable surface-layer similarity keeps the plume thin aloft. If the solver
  * or the closure changes, re-measure this table.
+ *
+ * The near field is checked a second time with the resolution taken out of it (NEAR_FIELD below: 25 m
+ * cells, the source at a cell centre): there every ground-release and B-D stack pair passes, and of the
+ * 48 rural B-E pairs (near field resolved, 2-5 km from the standard set-up) 45 pass; the three that fail
+ * are the E 30 m stack at 300 m, 500 m and 5 km.
  */
 import { describe, expect, it } from 'vitest';
 import { solveGridSteady } from '../../../solver/drivers/gridSteady.ts';
@@ -56,14 +61,64 @@ const PASSING: Record<string, number[]> = {
 };
 
 const HALF_WIDTH_m = 3000;
-const grid = buildLocalGrid({ halfWidth_m: HALF_WIDTH_m, spacing_m: 50, height_m: 1300, layers: 30 }, createLocalProjection({ lat: 52, lon: 5 }));
-const sourceX_m = -HALF_WIDTH_m + 200;
+const projection = createLocalProjection({ lat: 52, lon: 5 });
+const standardGrid = buildLocalGrid({ halfWidth_m: HALF_WIDTH_m, spacing_m: 50, height_m: 1300, layers: 30 }, projection);
 
-function input(stability: 'B' | 'C' | 'D' | 'E', height_m: number): SteadyRunInput {
+/** The set-up of a check: grid, source position (200 m in from the west edge), distances. */
+interface CheckSetUp {
+  grid: ReturnType<typeof buildLocalGrid>;
+  sourceX_m: number;
+  sourceY_m: number;
+  distances_m: number[];
+}
+
+/** The standard set-up: 50 m cells, the source on the corner of four cells (the hardest place for it). */
+const STANDARD: CheckSetUp = { grid: standardGrid, sourceX_m: -HALF_WIDTH_m + 200, sourceY_m: 0, distances_m: DISTANCES_m };
+
+/**
+ * The near field resolved: 25 m cells and the source at a cell centre, 300 m to 1 km. At 300 m Briggs
+ * E sigma_y is 18 m, under half a 50 m cell; a source on a cell corner is also shared among four cells,
+ * which adds about 25 m of crosswind spread before the closure acts. Measured (25 m, centre):
+ *
+ *   class source | 300 m  500 m  1 km
+ *   B  ground    | 1.34   1.01   0.74
+ *   C  ground    | 1.64   1.49   1.05
+ *   D  ground    | 1.57   1.78   1.54
+ *   E  ground    | 0.70   0.91   1.03
+ *   B  30 m      | 0.59   0.61   0.68
+ *   C  30 m      | 0.70   0.70   0.79
+ *   D  30 m      | 0.81   0.75   0.99
+ *   E  30 m      | 2.57x  0.47x  0.64
+ *
+ * (The same to two decimals on a 6 km and on this 2.4 km domain.) Failing, not asserted: the E 30 m
+ * stack at 300 and 500 m, where the Briggs E plume (sigma_z 8 and 13 m) has barely reached the ground
+ * (the reference there is exp(-6.5) and exp(-2.7) of its centreline value), so the ratio is a ratio of
+ * the plumes' lower tails.
+ */
+const NEAR_FIELD: CheckSetUp = {
+  grid: buildLocalGrid({ halfWidth_m: 1200, spacing_m: 25, height_m: 1300, layers: 30 }, projection),
+  sourceX_m: -1200 + 200 + 12.5,
+  sourceY_m: 12.5,
+  distances_m: [300, 500, 1000],
+};
+
+const NEAR_FIELD_PASSING: Record<string, number[]> = {
+  'B 1': [300, 500, 1000],
+  'C 1': [300, 500, 1000],
+  'D 1': [300, 500, 1000],
+  'E 1': [300, 500, 1000],
+  'B 30': [300, 500, 1000],
+  'C 30': [300, 500, 1000],
+  'D 30': [300, 500, 1000],
+  'E 30': [1000],
+};
+
+function input(stability: 'B' | 'C' | 'D' | 'E', height_m: number, setUp: CheckSetUp = STANDARD): SteadyRunInput {
+  const { grid, sourceX_m, sourceY_m } = setUp;
   return {
     grid,
-    sources: [{ kind: 'point', id: 'release', x_m: sourceX_m, y_m: 0, height_m, diameter_m: 1, exitVelocity_m_s: 10, exitTemperature_K: 400, emission_g_s: 1, plumeRise: false }],
-    receptors: DISTANCES_m.map((d) => ({ id: `x${d}`, x_m: sourceX_m + d, y_m: 0, height_m: 1.5 })),
+    sources: [{ kind: 'point', id: 'release', x_m: sourceX_m, y_m: sourceY_m, height_m, diameter_m: 1, exitVelocity_m_s: 10, exitTemperature_K: 400, emission_g_s: 1, plumeRise: false }],
+    receptors: setUp.distances_m.map((d) => ({ id: `x${d}`, x_m: sourceX_m + d, y_m: sourceY_m, height_m: 1.5 })),
     pollutant: { name: 'tracer', halfLife_h: null, washout: null, depositionVelocity_m_s: 0 },
     weather: {
       windSpeed_m_s: 5, windFrom_deg: 270, stability, mixingHeight_m: DEFAULT_MIXING_HEIGHT_m[stability],
@@ -76,15 +131,15 @@ function input(stability: 'B' | 'C' | 'D' | 'E', height_m: number): SteadyRunInp
   };
 }
 
-describe('grid solver with the stability closure vs the Gaussian reference (Briggs), factor of two', () => {
+function checkPairs(setUp: CheckSetUp, passingPairs: Record<string, number[]>): void {
   for (const height of [1, 30]) {
     for (const stability of ['B', 'C', 'D', 'E'] as const) {
-      const passing = PASSING[`${stability} ${height}`];
+      const passing = passingPairs[`${stability} ${height}`];
       it(`class ${stability}, ${height === 1 ? 'ground release' : '30 m stack'}: within a factor of two at ${passing.join(', ')} m`, () => {
-        const run = input(stability, height);
+        const run = input(stability, height, setUp);
         const grid = solveGridSteady(run);
         const reference = runGaussianSteady(run);
-        DISTANCES_m.forEach((distance, n) => {
+        setUp.distances_m.forEach((distance, n) => {
           expect(reference.receptors_ug_m3[n]).toBeGreaterThan(0);
           if (!passing.includes(distance)) return;
           const ratio = grid.receptors_ug_m3[n] / reference.receptors_ug_m3[n];
@@ -94,4 +149,12 @@ describe('grid solver with the stability closure vs the Gaussian reference (Brig
       });
     }
   }
+}
+
+describe('grid solver with the stability closure vs the Gaussian reference (Briggs), factor of two', () => {
+  checkPairs(STANDARD, PASSING);
+});
+
+describe('the same, near field resolved (25 m cells, source at a cell centre)', () => {
+  checkPairs(NEAR_FIELD, NEAR_FIELD_PASSING);
 });
