@@ -1,8 +1,8 @@
 /**
  * Weather benchmarks (npm run bench): one JSON object per line on stdout, each with a `name`.
  * - weather-year-hourly (Gaussian): the invented demo met year (8760 hours) of
- *   scenarios/merrowdene-heat-plant-year on its 100x100x20 grid, hour by hour, in full, in process (as
- *   the command line runs it: Gaussian solves are too quick for threads to pay);
+ *   scenarios/merrowdene-heat-plant-year on its 100x100x20 grid, hour by hour, in full, in the thread
+ *   pool as the command line runs it;
  * - weather-year-hourly (grid): the same year in grid mode (target under 2 minutes here), in full,
  *   solved as `plumeplan run` solves a series: a pool of worker threads (one per core), each lane taking
  *   runs of one wind direction and class in sorted order and warm-starting from the solve before, at the
@@ -38,10 +38,10 @@ function progressPrinter(label: string): (fraction: number, message: string) => 
   };
 }
 
-/** A run as the command line makes it: grid series solves in a pool of worker threads (started inside the timing). */
+/** A run as the command line makes it: series solves in a pool of worker threads (started inside the timing). */
 async function timed(label: string, scenario: Scenario, mode: SolverMode): Promise<{ result: ScenarioRunResult; wallSeconds: number } | { error: string }> {
   const started = performance.now();
-  const pooled = mode === 'grid' && scenario.weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours';
+  const pooled = scenario.weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours';
   const pool = pooled ? createSeriesSolverPool(THREADS) : null;
   try {
     const result = await runScenario(scenario, { mode, seriesSolvers: pool?.solvers, stepThreads: THREADS, control: { onProgress: progressPrinter(label) } });
@@ -84,7 +84,7 @@ function seriesLine(name: string, mode: SolverMode, hours: number, outcome: { re
     mode,
     grid: gridLabel,
     hours,
-    threads: mode === 'grid' ? THREADS : 1,
+    threads: THREADS,
     wallSeconds: round(outcome.wallSeconds),
     solves: series.solves,
     identicalReuses: series.identicalReuses,
