@@ -11,7 +11,7 @@ import { paddedFieldMass_g } from '../fields/paddedLayout.ts';
 import { lossesFor } from '../losses/firstOrderLosses.ts';
 import { effectiveHeight_m } from '../sources/plumeRise.ts';
 import { gridEmissionFromSources, totalEmission_g_s } from '../sources/gridEmission.ts';
-import { solveSteadyState, STEADY_TOLERANCE, type SteadySolveReport } from '../timestepping/steadySweep.ts';
+import { ACTIVE_COLUMN_THRESHOLD, solveSteadyState, STEADY_TOLERANCE, type SteadySolveReport } from '../timestepping/steadySweep.ts';
 import { columnWindFromWeather } from '../wind/columnWind.ts';
 import { createDispersionModel, type DispersionModel, type DispersionModelParts } from './model.ts';
 import type { MassBudget, ResolvedWeather, RunControl, SourceReport, SteadyFieldResult, SteadyRunInput } from './types.ts';
@@ -212,9 +212,16 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
   }));
   const lidFace = model.physics.lidFace;
   const notes = [
-    `grid mode: steady state by downwind block Gauss-Seidel sweeps with Anderson mixing, ${report.sweeps} sweeps` +
+    `grid mode: steady state by downwind block Gauss-Seidel sweeps ` +
+      (report.andersonDepth > 0
+        ? `with Anderson mixing (depth ${report.andersonDepth})`
+        : `without mixing (the limited correction refreshed every ${report.correctionInterval === 1 ? 'sweep' : `${report.correctionInterval} sweeps`})`) +
+      `, ${report.sweeps} sweeps` +
       (options.initialField_g_m3 !== undefined ? ' from a warm start' : '') +
       `, ${report.layersSolved < grid.nz ? `layers below the lid only (${report.layersSolved} of ${grid.nz}), ` : ''}` +
+      (report.activeColumnFraction < 1
+        ? `${(100 * report.activeColumnFraction).toFixed(0)} % of the columns swept (the rest below ${ACTIVE_COLUMN_THRESHOLD} of the peak), `
+        : '') +
       `last relative change ${report.lastChange.toExponential(2)} (tolerance ${tolerance.toExponential(0)})` +
       (report.converged ? '' : '; NOT CONVERGED within the sweep limit, figures are approximate'),
     `advection ${model.advection.name}; diffusivities ${model.closure.name}`,

@@ -71,6 +71,10 @@ export interface SteadySolveReport {
   layersSolved: number;
   /** fraction of the nx x ny columns swept in the last sweep (1 when every column was) */
   activeColumnFraction: number;
+  /** Anderson mixing depth used (0: plain sweeps) */
+  andersonDepth: number;
+  /** sweeps per refresh of the deferred correction */
+  correctionInterval: number;
 }
 
 /**
@@ -902,5 +906,5 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   }
   fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
   const activeColumnFraction = region.solvedColumns / (grid.nx * grid.ny);
-  return { sweeps, converged, lastChange, estimatedError, contraction, tolerance, layersSolved, activeColumnFraction };
+  return { sweeps, converged, lastChange, estimatedError, contraction, tolerance, layersSolved, activeColumnFraction, andersonDepth: depth, correctionInterval };
 }
