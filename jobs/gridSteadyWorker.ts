@@ -5,24 +5,15 @@
 import { parentPort, workerData } from 'node:worker_threads';
 import { solveGridSteady } from '../solver/drivers/gridSteady.ts';
 import type { SteadyRunInput } from '../solver/drivers/types.ts';
-import type { LocalProjection } from '../solver/grid/types.ts';
 import type { WorkerReply } from './messages.ts';
+import { projectionStandIn } from './projectionStandIn.ts';
 
 const port = parentPort;
 if (port === null) throw new Error('gridSteadyWorker must run in a worker thread');
 
 const { input, projectionDefinition } = (workerData as { data: { input: Omit<SteadyRunInput, 'grid'> & { grid: Omit<SteadyRunInput['grid'], 'projection'> }; projectionDefinition: string } }).data;
 
-// The solve works in local metres only; the projection's conversions stay with the caller.
-const projection: LocalProjection = {
-  definition: projectionDefinition,
-  toLocal() {
-    throw new Error('the projection is not available inside the solver worker');
-  },
-  toLonLat() {
-    throw new Error('the projection is not available inside the solver worker');
-  },
-};
+const projection = projectionStandIn(projectionDefinition);
 
 try {
   const result = solveGridSteady(

@@ -7,19 +7,11 @@
 import { parentPort } from 'node:worker_threads';
 import { createSeriesSteadySolver } from '../solver/drivers/solveSteady.ts';
 import type { SteadyRunInput } from '../solver/drivers/types.ts';
-import type { LocalProjection } from '../solver/grid/types.ts';
 import type { SeriesSolveReply, SeriesSolveRequest } from './messages.ts';
+import { projectionStandIn } from './projectionStandIn.ts';
 
 const port = parentPort;
 if (port === null) throw new Error('seriesSolveWorker must run in a worker thread');
-
-// The solve works in local metres only; the projection's conversions stay with the caller.
-function projectionStandIn(definition: string): LocalProjection {
-  const unavailable = (): never => {
-    throw new Error('the projection is not available inside the solver worker');
-  };
-  return { definition, toLocal: unavailable, toLonLat: unavailable };
-}
 
 const solve = createSeriesSteadySolver();
 

@@ -316,6 +316,22 @@ function singleHeightChange(a: number[], b: number[]): number | null {
 const SECANT_MAX_RATIO = 2;
 
 /**
+ * The secant warm start for a state, when there is one: the last two kept solves have its operator
+ * (sameOperator) and differ from each other, and from it, in the same one source's effective height.
+ * Returns them with the step ratio (height - last) / (last - before), within SECANT_MAX_RATIO.
+ */
+function secantStart(kept: readonly KeptField[], weather: ResolvedWeather, heights_m: number[]): { last: KeptField; before: KeptField; ratio: number } | null {
+  if (kept.length < 2) return null;
+  const last = kept[kept.length - 1];
+  const before = kept[kept.length - 2];
+  if (!sameOperator(last.weather, weather) || !sameOperator(before.weather, weather)) return null;
+  const moving = singleHeightChange(last.heights_m, before.heights_m);
+  if (moving === null || singleHeightChange(heights_m, last.heights_m) !== moving) return null;
+  const ratio = (heights_m[moving] - last.heights_m[moving]) / (last.heights_m[moving] - before.heights_m[moving]);
+  return Math.abs(ratio) <= SECANT_MAX_RATIO ? { last, before, ratio } : null;
+}
+
+/**
  * How far apart two weather states are for a warm start: infinite for different wind directions (the
  * plume would point elsewhere; an empty start is better), otherwise a sum of relative differences of
  * speed, mixing height and air temperature, plus one for a different stability class.
@@ -373,22 +389,16 @@ export function createWarmStartGridSolver(options: WarmStartSolverOptions = {}):
     if (nearest !== null) {
       if (warm === null || warm.length !== nearest.field_g_m3.length) warm = new Float64Array(nearest.field_g_m3.length);
       const speed = input.weather.windSpeed_m_s;
-      // Secant start: the last two solves have this operator and differ from each other and from this
-      // state in one source's effective height: extrapolate their speed-scaled fields in that height.
-      const last = kept.length >= 2 ? kept[kept.length - 1] : null;
-      const before = kept.length >= 2 ? kept[kept.length - 2] : null;
-      const moving = last !== null && before !== null ? singleHeightChange(last.heights_m, before.heights_m) : null;
-      const secant =
-        last !== null && before !== null && moving !== null && sameOperator(last.weather, input.weather) && sameOperator(before.weather, input.weather)
-          ? (heights_m[moving] - last.heights_m[moving]) / (last.heights_m[moving] - before.heights_m[moving])
-          : NaN;
-      if (last !== null && before !== null && Number.isFinite(secant) && Math.abs(secant) <= SECANT_MAX_RATIO && singleHeightChange(heights_m, last.heights_m) === moving) {
+      const secant = secantStart(kept, input.weather, heights_m);
+      if (secant !== null) {
+        // extrapolate the speed-scaled fields of the last two solves in the moving height, clipped at zero
+        const { last, before, ratio } = secant;
         const a = last.field_g_m3;
         const b = before.field_g_m3;
         const scaleA = last.weather.windSpeed_m_s / speed;
         const scaleB = before.weather.windSpeed_m_s / speed;
         for (let n = 0; n < warm.length; n++) {
-          const value = a[n] * scaleA + secant * (a[n] * scaleA - b[n] * scaleB);
+          const value = a[n] * scaleA + ratio * (a[n] * scaleA - b[n] * scaleB);
           warm[n] = value > 0 ? value : 0;
         }
       } else {

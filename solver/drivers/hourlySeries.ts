@@ -188,7 +188,8 @@ function storeSolve(result: SteadyFieldResult, windSpeed_m_s: number): StoredSol
 /**
  * Solve a list of weather states with exact reuse (shared by hourly series and wind roses).
  * The distinct states are found first, sorted so that neighbouring weather follows each other (same
- * wind direction and class together; mixing height, rain, speed and temperature ascending), cut into
+ * wind direction and class together; mixing height, rain, the sources' effective heights, speed and
+ * temperature ascending), cut into
  * runs of one direction and class, and solved run by run in `lanes`: each lane takes the next whole run
  * and solves it in order, so a warm-starting solver always starts from the state just before. With an
  * array of solvers (a pool, one per worker thread) lane t uses solvers[t]; with one solver,
@@ -230,7 +231,10 @@ export async function solveWithReuse(
   // can extrapolate from the two solves before (../drivers/gridSteady.ts).
   const heightsOfSolve = firstStateOfSolve.map((h) => releaseHeights_m(base, states[h]));
   const solveOrder = Array.from(firstStateOfSolve.keys()).sort(
-    (a, b) => compareWeatherOperator(stateOfSolve(a), stateOfSolve(b)) || compareHeights(heightsOfSolve[a], heightsOfSolve[b]) || compareWeather(stateOfSolve(a), stateOfSolve(b)),
+    (a, b) =>
+      compareWeatherOperator(stateOfSolve(a), stateOfSolve(b)) ||
+      compareHeights(heightsOfSolve[a], heightsOfSolve[b]) ||
+      compareWeatherWithinOperator(stateOfSolve(a), stateOfSolve(b)),
   );
   const runs: number[][] = [];
   for (const index of solveOrder) {
@@ -298,22 +302,14 @@ function compareWeatherOperator(a: ResolvedWeather, b: ResolvedWeather): number 
   );
 }
 
+/** Order of weather states of one operator: speed, temperature, anemometer height. */
+function compareWeatherWithinOperator(a: ResolvedWeather, b: ResolvedWeather): number {
+  return a.windSpeed_m_s - b.windSpeed_m_s || a.airTemperature_K - b.airTemperature_K || a.anemometerHeight_m - b.anemometerHeight_m;
+}
+
 function compareHeights(a: number[], b: number[]): number {
   for (let n = 0; n < a.length; n++) if (a[n] !== b[n]) return a[n] - b[n];
   return 0;
-}
-
-/** Order of weather states for solving: direction, class, mixing height, rain, speed, temperature. */
-export function compareWeather(a: ResolvedWeather, b: ResolvedWeather): number {
-  return (
-    a.windFrom_deg - b.windFrom_deg ||
-    STABILITY_ORDER.indexOf(a.stability) - STABILITY_ORDER.indexOf(b.stability) ||
-    a.mixingHeight_m - b.mixingHeight_m ||
-    a.rain_mm_h - b.rain_mm_h ||
-    a.windSpeed_m_s - b.windSpeed_m_s ||
-    a.airTemperature_K - b.airTemperature_K ||
-    a.anemometerHeight_m - b.anemometerHeight_m
-  );
 }
 
 function checkShapes(base: SeriesBaseInput, result: SteadyFieldResult): void {

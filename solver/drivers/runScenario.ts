@@ -98,7 +98,7 @@ async function dispatchByWeather(
       return runHourlySeries(seriesBaseInput(scenario, geometry), weather.hours, {
         mode,
         method: scenario.solver.hourlyMethod,
-        continuous: stepThreads > 1 ? continuousGridSeriesWithThreads(stepThreads) : continuousGridSeries,
+        continuous: continuousGridSeriesWithThreads(stepThreads),
         site: scenario.site,
         assessment: scenario.assessment,
         control,
@@ -132,8 +132,7 @@ const HOUR_s = 3600;
  * marched through with the weather of the hour before it, unrecorded, so the field arriving at the next
  * hour has aged by the right time (stated in the notes).
  */
-export const continuousGridSeries: ContinuousSeriesRunner = (base, hours, hourStarts_ms, control, onHour) =>
-  continuousGridSeriesOn(1, base, hours, hourStarts_ms, control, onHour);
+export const continuousGridSeries: ContinuousSeriesRunner = continuousGridSeriesWithThreads(1);
 
 /**
  * The continuous method with each step split by rows over `stepThreads` threads (the result is

@@ -57,10 +57,10 @@ export interface RangeShape {
 }
 
 /**
- * Change and norm of a sweep (sums[0], sums[1], depth-weighted L1); remembers residual and image, and,
- * when given, stores their differences from the previous ones.
+ * Remember this sweep's residual (image - iterate) and image over the ranges and, when given, store
+ * their differences from the previous ones (the newest history slot).
  */
-export function residualPass(
+export function recordResidual(
   shape: RangeShape,
   field: Float64Array,
   iterate: Float64Array,
@@ -68,46 +68,30 @@ export function residualPass(
   previousImage: Float64Array,
   residualDifference: Float32Array | null,
   imageDifference: Float32Array | null,
-  dz: Float64Array,
-  sums: Float64Array,
 ): void {
   const { ny, layers, rowStride, planeStride, first, end } = shape;
-  let change = 0;
-  let norm = 0;
   for (let k = 0; k < layers; k++) {
-    let layerChange = 0;
-    let layerNorm = 0;
     for (let j = 0; j < ny; j++) {
       const base = k * planeStride + 2 + rowStride * (j + 2);
-      const from = base + first[j];
       const to = base + end[j];
       if (residualDifference !== null && imageDifference !== null) {
-        for (let n = from; n < to; n++) {
+        for (let n = base + first[j]; n < to; n++) {
           const image = field[n];
           const residual = image - iterate[n];
-          layerChange += residual < 0 ? -residual : residual;
-          layerNorm += image < 0 ? -image : image;
           residualDifference[n] = residual - previousResidual[n];
           imageDifference[n] = image - previousImage[n];
           previousResidual[n] = residual;
           previousImage[n] = image;
         }
       } else {
-        for (let n = from; n < to; n++) {
+        for (let n = base + first[j]; n < to; n++) {
           const image = field[n];
-          const residual = image - iterate[n];
-          layerChange += residual < 0 ? -residual : residual;
-          layerNorm += image < 0 ? -image : image;
-          previousResidual[n] = residual;
+          previousResidual[n] = image - iterate[n];
           previousImage[n] = image;
         }
       }
     }
-    change += layerChange * dz[k];
-    norm += layerNorm * dz[k];
   }
-  sums[0] = change;
-  sums[1] = norm;
 }
 
 /** sums[i] = d_i . fresh, sums[MAX_ANDERSON_DEPTH + i] = d_i . residual, for the six slots. */

@@ -22,7 +22,7 @@ import { fillGhostCells } from '../boundaries/boundaryConditions.ts';
 import type { DispersionModel } from '../drivers/model.ts';
 import type { RunControl } from '../drivers/types.ts';
 import { ACTIVE_COLUMN_THRESHOLD, activeColumnsFor, growActiveColumns, type ActiveColumns } from './activeColumns.ts';
-import { ANDERSON_DEPTH, MAX_ANDERSON_DEPTH, copyPass, leastSquares, mixPass, projectionPass, residualPass, type RangeShape } from './andersonMixing.ts';
+import { ANDERSON_DEPTH, MAX_ANDERSON_DEPTH, copyPass, leastSquares, mixPass, projectionPass, recordResidual, type RangeShape } from './andersonMixing.ts';
 import type { StepPhysics } from './stepPlan.ts';
 
 export { ACTIVE_COLUMN_THRESHOLD } from './activeColumns.ts';
@@ -109,15 +109,12 @@ interface SteadyCoefficients {
   nz: number;
   rowStride: number;
   planeStride: number;
-  /** per layer [1/s]: inflow weights from the west, east, south, north neighbours (upwind + diffusion) */
-  fromWest: Float64Array;
-  fromEast: Float64Array;
-  fromSouth: Float64Array;
-  fromNorth: Float64Array;
-  /** per layer: Thomas factors of the column matrix */
-  lower: Float64Array;
-  inversePivot: Float64Array;
-  upperFactor: Float64Array;
+  /**
+   * The column solve's coefficients, per layer k at k * PACKED (one small block the column loops read):
+   * inflow weights [1/s] from the west, east, south and north neighbours (upwind + diffusion), the
+   * Thomas factors of the column matrix (lower, inverse pivot, upper factor) and the layer's dz [m].
+   */
+  packed: Float64Array;
   /** per layer: limited-correction weights [1/s] = alpha u+/dx etc. */
   xPlus: Float64Array;
   xMinus: Float64Array;
@@ -128,8 +125,6 @@ interface SteadyCoefficients {
   zMinus: Float64Array;
   inverseDz: Float64Array;
   verticalAdvection: boolean;
-  /** per layer k at k * PACKED: fromWest, fromEast, fromSouth, fromNorth, lower, inversePivot, upperFactor, dz */
-  packed: Float64Array;
 }
 
 const PACKED = 8;
@@ -147,13 +142,7 @@ function steadyCoefficients(physics: StepPhysics, layers: number): SteadyCoeffic
     nz,
     rowStride: layout.rowStride,
     planeStride: layout.planeStride,
-    fromWest: perLayer(),
-    fromEast: perLayer(),
-    fromSouth: perLayer(),
-    fromNorth: perLayer(),
-    lower: perLayer(),
-    inversePivot: perLayer(),
-    upperFactor: perLayer(),
+    packed: new Float64Array(nz * PACKED),
     xPlus: perLayer(),
     xMinus: perLayer(),
     yPlus: perLayer(),
@@ -162,8 +151,8 @@ function steadyCoefficients(physics: StepPhysics, layers: number): SteadyCoeffic
     zMinus: new Float64Array(nz + 1),
     inverseDz: perLayer(),
     verticalAdvection: false,
-    packed: new Float64Array(nz * PACKED),
   };
+  const packed = c.packed;
   const diagonal = perLayer();
   const below = perLayer(); // coefficient of c_{k-1} moved to the right-hand side (>= 0)
   const above = perLayer(); // coefficient of c_{k+1} (>= 0)
@@ -173,10 +162,11 @@ function steadyCoefficients(physics: StepPhysics, layers: number): SteadyCoeffic
     const vPlus = Math.max(physics.v_m_s[k], 0) / dx;
     const vMinus = Math.min(physics.v_m_s[k], 0) / dx;
     const diffusion = physics.horizontal_m2_s[k] / (dx * dx);
-    c.fromWest[k] = uPlus + diffusion;
-    c.fromEast[k] = -uMinus + diffusion;
-    c.fromSouth[k] = vPlus + diffusion;
-    c.fromNorth[k] = -vMinus + diffusion;
+    packed[k * PACKED] = uPlus + diffusion; // from the west
+    packed[k * PACKED + 1] = -uMinus + diffusion; // from the east
+    packed[k * PACKED + 2] = vPlus + diffusion; // from the south
+    packed[k * PACKED + 3] = -vMinus + diffusion; // from the north
+    packed[k * PACKED + 7] = grid.dz_m[k];
     diagonal[k] = uPlus - uMinus + vPlus - vMinus + 4 * diffusion + physics.lossRate_per_s;
     c.xPlus[k] = alpha * uPlus;
     c.xMinus[k] = alpha * uMinus;
@@ -206,21 +196,10 @@ function steadyCoefficients(physics: StepPhysics, layers: number): SteadyCoeffic
     if (!(pivot > 0)) {
       throw new RangeError(`steady solve: layer ${k} has no outflow, loss or exchange (pivot ${pivot}); a steady state does not exist`);
     }
-    c.lower[k] = below[k];
-    c.inversePivot[k] = 1 / pivot;
-    c.upperFactor[k] = above[k] / pivot;
-    previousUpper = c.upperFactor[k];
-  }
-  for (let k = 0; k < nz; k++) {
-    const p = k * PACKED;
-    c.packed[p] = c.fromWest[k];
-    c.packed[p + 1] = c.fromEast[k];
-    c.packed[p + 2] = c.fromSouth[k];
-    c.packed[p + 3] = c.fromNorth[k];
-    c.packed[p + 4] = c.lower[k];
-    c.packed[p + 5] = c.inversePivot[k];
-    c.packed[p + 6] = c.upperFactor[k];
-    c.packed[p + 7] = grid.dz_m[k];
+    previousUpper = above[k] / pivot;
+    packed[k * PACKED + 4] = below[k]; // lower
+    packed[k * PACKED + 5] = 1 / pivot; // inverse pivot
+    packed[k * PACKED + 6] = previousUpper; // upper factor
   }
   return c;
 }
@@ -350,8 +329,7 @@ function solveOneColumn(state: SweepState, i: number, j: number): void {
   const { c, field, correction, column } = state;
   const { nx, nz, rowStride, planeStride, packed } = c;
   const columnBase = 2 + i + rowStride * (j + 2);
-  // forward elimination (per layer: fromWest, fromEast, fromSouth, fromNorth, lower, inversePivot,
-  // upperFactor, dz, packed in one array so the loop reads one small block)
+  // forward elimination (packed per layer: west, east, south, north, lower, inverse pivot, upper, dz)
   let previous = 0;
   for (let k = 0, n = columnBase, p = 0; k < nz; k++, n += planeStride, p += PACKED) {
     const rhs = correction[n] + packed[p] * field[n - 1] + packed[p + 1] * field[n + 1] + packed[p + 2] * field[n - rowStride] + packed[p + 3] * field[n + rowStride];
@@ -494,12 +472,12 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   const maxSweeps = options.maxSweeps ?? STEADY_MAX_SWEEPS;
   const minSweeps = options.minSweeps ?? 2;
   const depth = options.andersonDepth ?? ANDERSON_DEPTH;
+  if (!Number.isInteger(depth) || depth < 0 || depth > MAX_ANDERSON_DEPTH) {
+    throw new RangeError(`andersonDepth is ${depth}; allowed: an integer from 0 to ${MAX_ANDERSON_DEPTH}`);
+  }
   const correctionInterval = options.correctionInterval ?? 1;
   if (!Number.isInteger(correctionInterval) || correctionInterval < 1 || (depth > 0 && correctionInterval !== 1)) {
     throw new RangeError(`correctionInterval is ${correctionInterval}; allowed: an integer >= 1, and 1 with Anderson mixing (it needs a fixed map)`);
-  }
-  if (!Number.isInteger(depth) || depth < 0 || depth > MAX_ANDERSON_DEPTH) {
-    throw new RangeError(`andersonDepth is ${depth}; allowed: an integer from 0 to ${MAX_ANDERSON_DEPTH}`);
   }
   const physics = model.physics;
   const { grid, layout } = model;
@@ -587,17 +565,18 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
       for (let slot = 0; slot < stored; slot++) gram[slot][newest] = 0;
       projections.fill(0);
     }
-    if (depth > 0) residualPass(
-      shape,
-      field,
-      iterate,
-      previousResidual,
-      previousImage,
-      mixing ? residualDifferences[newest] : null,
-      mixing ? imageDifferences[newest] : null,
-      grid.dz_m,
-      passSums,
-    );
+    // The sweep measured its change and norm (passSums); mixing keeps the residuals' history.
+    if (depth > 0) {
+      recordResidual(
+        shape,
+        field,
+        iterate,
+        previousResidual,
+        previousImage,
+        mixing ? residualDifferences[newest] : null,
+        mixing ? imageDifferences[newest] : null,
+      );
+    }
     const change = passSums[0];
     const norm = passSums[1];
     previousChange = lastChange;
@@ -628,7 +607,7 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
       copyPass(shape, field, iterate);
     }
   }
-  fillGhostCells(layout, field, model.boundaries.lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
+  fillGhostCells(layout, field, lateral, physics.u_m_s, physics.v_m_s, 0, grid.ny);
   const activeColumnFraction = region.solvedColumns / (grid.nx * grid.ny);
   return { sweeps, converged, lastChange, estimatedError, contraction, tolerance, layersSolved, activeColumnFraction, andersonDepth: depth, correctionInterval };
 }
