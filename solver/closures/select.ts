@@ -1,7 +1,7 @@
 /**
  * The diffusivity closure a scenario's dispersion setting asks for.
  */
-import type { Dispersion, LandUse } from '../../scenario/types.ts';
+import type { Dispersion, LandUse } from '../../scenarios/format/types.ts';
 import { ConstantDiffusivity } from './constantDiffusivity.ts';
 import { createStabilityDiffusivity } from './stabilityDiffusivity.ts';
 import type { DiffusivityClosure } from './types.ts';

@@ -44,7 +44,7 @@
  * Both diffusivities are proportional to the wind speed (u* and u(z) are), so the steady field
  * scales exactly as 1 / u when nothing else depends on the speed.
  */
-import type { LandUse, StabilityClass } from '../../scenario/types.ts';
+import type { LandUse, StabilityClass } from '../../scenarios/format/types.ts';
 import type { ResolvedWeather } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
 import type { DiffusivityClosure } from './types.ts';

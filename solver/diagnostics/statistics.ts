@@ -23,7 +23,7 @@
  * - Hours missing from the series are neither invented nor interpolated: statistics use the hours
  *   present, and the coverage (present / expected, with each gap) is reported beside them.
  */
-import type { AirQualityStandard } from '../../scenario/types.ts';
+import type { AirQualityStandard } from '../../scenarios/format/types.ts';
 import { calendarDay, HOUR_MS } from '../meteorology/time.ts';
 
 /** Hours in the year the standards count in [h]. */

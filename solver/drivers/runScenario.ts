@@ -3,13 +3,14 @@
  * placed sources and receptors), weather resolution, then a dispatch by weather kind. Pure: no files,
  * no process, no console; the command line and the server both call this.
  */
-import type { Scenario, SolverMode } from '../../scenario/types.ts';
+import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
 import { SlabPoolExecutor } from '../parallel/slabPool.ts';
 import { MAX_SLABS } from '../timestepping/simd/transportRowModule.ts';
 import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { createGridTransient, marchGridPeriod } from './gridTransient.ts';
-import { runHourlySeries, type ContinuousSeriesRunner, type SeriesBaseInput } from './hourlySeries.ts';
+import { runHourlySeries, type ContinuousSeriesRunner } from './hourlySeries.ts';
+import type { SeriesBaseInput } from './seriesSolves.ts';
 import { runWindRose } from './windRose.ts';
 import type { SteadySolver } from './solveSteady.ts';
 import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
@@ -32,7 +33,7 @@ export interface RunScenarioOptions {
   solve?: SteadySolver;
   /**
    * solvers for the many steady solves of an hourly series or a wind rose, one per lane (a pool of
-   * worker threads, say: ../../jobs/seriesSolverPool.ts); default: `solve`, or the series default
+   * worker threads, say: server/jobs/seriesSolverPool.ts); default: `solve`, or the series default
    */
   seriesSolvers?: readonly SteadySolver[];
   /** threads each step of a continuous grid march is split over (default 1) */

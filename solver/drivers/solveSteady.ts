@@ -3,7 +3,7 @@
  * Steady scenarios, hourly series and wind roses all reach the solvers through here (or through a
  * function of the same shape that a caller passes in, such as a worker-thread wrapper).
  */
-import type { SolverMode } from '../../scenario/types.ts';
+import type { SolverMode } from '../../scenarios/format/types.ts';
 import { runGaussianSteady } from './gaussianSteady.ts';
 import { createWarmStartGridSolver, solveGridSteady, type WarmStartSolverOptions } from './gridSteady.ts';
 import type { RunControl, SteadyFieldResult, SteadyRunInput } from './types.ts';

@@ -2,7 +2,7 @@
  * A steady-weather scenario: one steady solve, handed to the result writers as a ScenarioRunResult with
  * one receptor column (`concentration_ug_m3`) and the ground-level field as the footprint.
  */
-import type { SolverMode } from '../../scenario/types.ts';
+import type { SolverMode } from '../../scenarios/format/types.ts';
 import { solveSteady, type SteadySolver } from './solveSteady.ts';
 import type { RunControl, ScenarioRunResult, SteadyFieldResult, SteadyRunInput } from './types.ts';
 
@@ -73,6 +73,5 @@ export function steadyRunResult(
     receptorColumns: [{ key: STEADY_RECEPTOR_COLUMN, values: field.receptors_ug_m3 }],
     notes,
     extraSummary,
-    extraFiles: [],
   };
 }

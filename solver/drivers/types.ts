@@ -10,8 +10,9 @@ import type {
   SolverMode,
   StabilityClass,
   WindProfile,
-} from '../../scenario/types.ts';
+} from '../../scenarios/format/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
+import type { WindRoseTable } from '../meteorology/windRoseTable.ts';
 
 /** Weather of one steady period with every field resolved (stability derived, calms applied). */
 export interface ResolvedWeather {
@@ -167,6 +168,6 @@ export interface ScenarioRunResult {
   notes: string[];
   /** extra summary.json entries (weather statistics, standards, stability frequencies), JSON-ready */
   extraSummary: Record<string, unknown>;
-  /** extra files for the result folder, e.g. a wind-rose SVG */
-  extraFiles: { name: string; content: string }[];
+  /** the weather's wind rose (series and rose runs) and a caption for it; the writers draw the picture */
+  windRose?: { table: WindRoseTable; caption: string };
 }

@@ -15,7 +15,7 @@
  * Standards on daily or other multi-hour means need the time order and are not computed from a rose
  * (said in the notes and the summary).
  */
-import type { WindRoseWeather } from '../../scenario/types.ts';
+import type { WindRoseWeather } from '../../scenarios/format/types.ts';
 import {
   HOURS_PER_YEAR,
   percentileForStandard,
@@ -23,19 +23,9 @@ import {
 } from '../diagnostics/statistics.ts';
 import { CALM_THRESHOLD_m_s, resolveWeather } from '../meteorology/resolveWeather.ts';
 import { windRoseFromCells } from '../meteorology/windRoseTable.ts';
-import { windRoseSvg } from '../../results/windRoseSvg.ts';
-import {
-  distinctNotes,
-  groundPeak,
-  meanSourceReports,
-  reuseRules,
-  seriesMassBudget,
-  seriesReceptorColumns,
-  solveWithReuse,
-  standardsSummary,
-  type SeriesBaseInput,
-  type SeriesRunOptions,
-} from './hourlySeries.ts';
+import { reuseRules, solveWithReuse, type SeriesBaseInput, type SeriesRunOptions } from './seriesSolves.ts';
+import { groundPeak, seriesReceptorColumns } from './seriesStatistics.ts';
+import { distinctNotes, meanSourceReports, seriesMassBudget, standardsSummary } from './seriesSummaries.ts';
 import { solveSteady } from './solveSteady.ts';
 import type { ResolvedWeather, ScenarioRunResult } from './types.ts';
 
@@ -215,8 +205,6 @@ export async function runWindRose(
     receptorColumns: seriesReceptorColumns(receptorMean, receptorMax, standards),
     notes,
     extraSummary,
-    extraFiles: [
-      { name: 'windrose.svg', content: windRoseSvg(rose, { caption: options.windRoseCaption ?? 'Wind-rose weather of the run' }) },
-    ],
+    windRose: { table: rose, caption: options.windRoseCaption ?? 'Wind-rose weather of the run' },
   };
 }

@@ -2,7 +2,7 @@
  * The domain a scenario gets when it gives none, and the memory check every domain passes before
  * anything is allocated for it.
  */
-import type { Domain, Receptor, Source } from '../../scenario/types.ts';
+import type { Domain, Receptor, Source } from '../../scenarios/format/types.ts';
 import { checkDomain, columnsPerSide } from './localGrid.ts';
 import type { LocalProjection } from './types.ts';
 

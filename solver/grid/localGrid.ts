@@ -3,7 +3,7 @@
  * layers, thinnest at the ground. Conventions (index order, cell centres) are stated once in
  * `types.ts`; this module only builds grids and answers "which cell is this point in".
  */
-import type { Domain } from '../../scenario/types.ts';
+import type { Domain } from '../../scenarios/format/types.ts';
 import type { LocalGrid, LocalProjection } from './types.ts';
 
 /**

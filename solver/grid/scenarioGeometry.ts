@@ -2,7 +2,7 @@
  * Everything a run needs to know about where things are: the local projection about the site,
  * the domain (given or derived), the grid, and the sources and receptors placed on it.
  */
-import type { Domain, Scenario } from '../../scenario/types.ts';
+import type { Domain, Scenario } from '../../scenarios/format/types.ts';
 import type { PlacedReceptor, PlacedSource } from '../drivers/types.ts';
 import { placeReceptors, placeSources } from '../sources/placement.ts';
 import { checkGridMemory, deriveDomain } from './domainDefaults.ts';

@@ -5,7 +5,7 @@
  * No losses = an empty list.
  */
 import { decayRate_per_s, washoutRate_per_s } from './rates.ts';
-import type { Pollutant } from '../../scenario/types.ts';
+import type { Pollutant } from '../../scenarios/format/types.ts';
 
 export interface FirstOrderLoss {
   readonly name: string;

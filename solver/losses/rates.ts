@@ -3,7 +3,7 @@
  * chemical decay from a half-life, and below-cloud washout from the rain rate. Both act on the airborne
  * mass as dC/dt = -(k + Lambda) C, so over a travel time t the mass falls by exp(-(k + Lambda) t).
  */
-import type { Washout } from '../../scenario/types.ts';
+import type { Washout } from '../../scenarios/format/types.ts';
 
 /** Seconds in an hour [s/h]. */
 const SECONDS_PER_HOUR = 3600;

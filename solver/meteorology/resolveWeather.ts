@@ -9,7 +9,7 @@
  * 3. else `cloudCover_oktas` with `time`: the Pasquill-Turner table from wind and sky;
  * 4. else a RangeError naming what is missing.
  */
-import type { StabilityClass, WeatherFields } from '../../scenario/types.ts';
+import type { StabilityClass, WeatherFields } from '../../scenarios/format/types.ts';
 import type { ResolvedWeather } from '../drivers/types.ts';
 import { solarElevation_deg } from './solarElevation.ts';
 import { stabilityFromSky, stabilityFromTemperatureDifference, type SkyState } from './stabilityClass.ts';

@@ -33,7 +33,7 @@
  *   = a daytime hour whose neighbouring hour (the one before or after) is night; it gets D.
  * - The night columns use total cloud cover (the table says low cloud; only total cloud is given).
  */
-import type { StabilityClass, TemperatureDifference } from '../../scenario/types.ts';
+import type { StabilityClass, TemperatureDifference } from '../../scenarios/format/types.ts';
 
 /** Entries of the Pasquill-Turner table, split classes included. */
 export type TableEntry = StabilityClass | 'A-B' | 'B-C' | 'C-D';

@@ -3,7 +3,7 @@
  * "+01:00"), so an hour is one instant, and a calendar day can be taken in the series' own offset.
  *
  * Convention, stated once: an hourly record's `time` marks the START of its hour
- * (scenario/types.ts), so the hour's midpoint is time + 30 minutes.
+ * (scenarios/format/types.ts), so the hour's midpoint is time + 30 minutes.
  */
 
 /** One hour [ms]. */

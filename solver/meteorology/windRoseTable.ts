@@ -7,7 +7,7 @@
  * s * sectorWidth_deg and covers half a width either side; calm hours (speed raised by the calms rule)
  * are counted apart from the sectors, as is usual on a wind rose (common practice).
  */
-import type { StabilityClass, WindRoseCell } from '../../scenario/types.ts';
+import type { StabilityClass, WindRoseCell } from '../../scenarios/format/types.ts';
 import type { ResolvedWeather } from '../drivers/types.ts';
 
 /** Lower edges of the speed classes [m/s]; the last class is open above (plumeplan's choice). */

@@ -17,7 +17,7 @@
  * None of these defines a spread at x <= 0; callers return zero concentration upwind. Every curve here
  * gives 0 at x = 0 and is finite for x > 0.
  */
-import type { Dispersion, LandUse, StabilityClass } from '../../scenario/types.ts';
+import type { Dispersion, LandUse, StabilityClass } from '../../scenarios/format/types.ts';
 
 export interface Sigmas {
   /** crosswind spread [m] */

@@ -2,7 +2,7 @@
  * Sources and receptors from scenario longitude/latitude onto the local grid, in metres, refusing
  * anything that lies outside the grid.
  */
-import type { Receptor, Source } from '../../scenario/types.ts';
+import type { Receptor, Source } from '../../scenarios/format/types.ts';
 import type { PlacedReceptor, PlacedSource } from '../drivers/types.ts';
 import { gridEast_m, gridNorth_m, isInsideGrid } from '../grid/localGrid.ts';
 import type { LocalGrid } from '../grid/types.ts';

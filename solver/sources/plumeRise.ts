@@ -25,7 +25,7 @@
  * Every regime's gradual law reaches its final rise exactly at distanceToFinalRise_m, so riseAt is
  * continuous.
  */
-import type { LandUse, StabilityClass, WindProfile } from '../../scenario/types.ts';
+import type { LandUse, StabilityClass, WindProfile } from '../../scenarios/format/types.ts';
 import type { PlacedPointSource, ResolvedWeather } from '../drivers/types.ts';
 import { windSpeedAtHeight_m_s } from '../wind/powerLaw.ts';
 

@@ -6,7 +6,7 @@
  * direction the wind blows FROM, degrees clockwise from grid north, so the wind blows toward
  * (from + 180 deg): u = -speed sin(from), v = -speed cos(from).
  */
-import type { LandUse, WindProfile } from '../../scenario/types.ts';
+import type { LandUse, WindProfile } from '../../scenarios/format/types.ts';
 import type { ResolvedWeather } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
 import { windSpeedAtHeight_m_s } from './powerLaw.ts';

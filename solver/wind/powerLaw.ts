@@ -4,7 +4,7 @@
  *
  * Exponents: Irwin (1979), Atmospheric Environment 13:191, from memory (see ../shared/REFERENCES.md).
  */
-import type { LandUse, StabilityClass, WindProfile } from '../../scenario/types.ts';
+import type { LandUse, StabilityClass, WindProfile } from '../../scenarios/format/types.ts';
 import type { ResolvedWeather } from '../drivers/types.ts';
 
 /** Power-law exponents p [-] by stability class, open country (Irwin 1979, from memory). */

@@ -13,7 +13,7 @@
  */
 import { execFileSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
-import { loadScenarioFile } from '../../scenario/load.ts';
+import { loadScenarioFile } from '../../server/scenarioFiles/load.ts';
 import { ConstantDiffusivity } from '../../solver/closures/constantDiffusivity.ts';
 import { gridModelParts, releaseHeights_m, solveGridSteadyDetailed } from '../../solver/drivers/gridSteady.ts';
 import type { SteadyFieldResult, SteadyRunInput } from '../../solver/drivers/types.ts';

@@ -13,12 +13,12 @@
  * Progress goes to stderr during the long runs. Figures are what this machine measured; nothing here
  * fails for being slow.
  */
-import { createSeriesSolverPool, defaultSeriesThreads } from '../../jobs/seriesSolverPool.ts';
-import { loadScenarioFile } from '../../scenario/load.ts';
-import type { Scenario, SolverMode, WeatherHour } from '../../scenario/types.ts';
+import { createSeriesSolverPool, defaultSeriesThreads } from '../../server/jobs/seriesSolverPool.ts';
+import { loadScenarioFile } from '../../server/scenarioFiles/load.ts';
+import type { Scenario, SolverMode, WeatherHour } from '../../scenarios/format/types.ts';
 import { prepareScenarioGeometry } from '../../solver/grid/scenarioGeometry.ts';
 import { SERIES_ANDERSON_DEPTH, SERIES_STEADY_TOLERANCE } from '../../solver/drivers/gridSteady.ts';
-import { reuseKey, reuseRules } from '../../solver/drivers/hourlySeries.ts';
+import { reuseKey, reuseRules } from '../../solver/drivers/seriesSolves.ts';
 import { runScenario, seriesBaseInput } from '../../solver/drivers/runScenario.ts';
 import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { resolveWeather } from '../../solver/meteorology/resolveWeather.ts';

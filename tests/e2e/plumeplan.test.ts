@@ -8,7 +8,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'no
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { SCREENING_CAUTION } from '../../results/caution.ts';
+import { SCREENING_CAUTION } from '../../server/writers/caution.ts';
 
 const ROOT = path.join(import.meta.dirname, '..', '..');
 const BIN = path.join(ROOT, 'bin', 'plumeplan.mjs');
@@ -127,7 +127,7 @@ describe('plumeplan run on an hourly series in grid mode (the solver thread pool
     const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
     expect(summary.series.solves).toBeGreaterThan(10);
     // The same series in process, one solver: the statistics agree to the series tolerance.
-    const { loadScenarioFile } = await import('../../scenario/load.ts');
+    const { loadScenarioFile } = await import('../../server/scenarioFiles/load.ts');
     const { runScenario } = await import('../../solver/drivers/runScenario.ts');
     const loaded = await loadScenarioFile(file);
     if (!loaded.ok) throw new Error('the two-day scenario does not load');

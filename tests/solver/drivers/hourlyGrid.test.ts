@@ -18,7 +18,7 @@ import { continuousGridSeries } from '../../../solver/drivers/runScenario.ts';
 import { resolveWeather } from '../../../solver/meteorology/resolveWeather.ts';
 import type { SteadySolver } from '../../../solver/drivers/solveSteady.ts';
 import type { ScenarioRunResult } from '../../../solver/drivers/types.ts';
-import type { WindRoseWeather } from '../../../scenario/types.ts';
+import type { WindRoseWeather } from '../../../scenarios/format/types.ts';
 import { SITE, baseInput, hoursFrom, seriesScenario } from '../meteorology/seriesFixture.ts';
 
 const grid: SteadySolver = async (input, _mode, control) => solveGridSteady(input, control);

@@ -7,8 +7,8 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { parseScenario } from '../../../scenario/schema.ts';
-import type { Scenario } from '../../../scenario/types.ts';
+import { parseScenario } from '../../../scenarios/format/schema.ts';
+import type { Scenario } from '../../../scenarios/format/types.ts';
 import { runGaussianSteady } from '../../../solver/drivers/gaussianSteady.ts';
 import { runScenario, ScenarioInputError, steadyInput } from '../../../solver/drivers/runScenario.ts';
 import type { SteadySolver } from '../../../solver/drivers/solveSteady.ts';

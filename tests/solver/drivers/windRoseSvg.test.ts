@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { sectorIndex, speedClassIndex, windRoseFromCells, windRoseFromHours } from '../../../solver/meteorology/windRoseTable.ts';
-import { windRoseSvg } from '../../../results/windRoseSvg.ts';
+import { windRoseSvg } from '../../../server/writers/windRoseSvg.ts';
 import type { ResolvedWeather } from '../../../solver/drivers/types.ts';
 
 const hour = (windFrom_deg: number, windSpeed_m_s: number, stability: ResolvedWeather['stability'], calm = false): ResolvedWeather => ({

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { AreaSource, PointSource, Receptor } from '../../../scenario/types.ts';
+import type { AreaSource, PointSource, Receptor } from '../../../scenarios/format/types.ts';
 import {
   DEFAULT_DOMAIN_HEIGHT_m,
   DEFAULT_DOMAIN_LAYERS,

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { AreaSource, Scenario } from '../../../scenario/types.ts';
+import type { AreaSource, Scenario } from '../../../scenarios/format/types.ts';
 import { prepareScenarioGeometry } from '../../../solver/grid/scenarioGeometry.ts';
 
 // An invented scenario: a small heat plant at an invented site.

@@ -1,12 +1,12 @@
 /**
- * The invented demo year (scripts/makeDemoWeather.ts): deterministic, complete, shaped as the issue
+ * The invented demo year (scenarios/merrowdene-heat-plant-year/makeWeather.ts): deterministic, complete, shaped as the issue
  * asks (diurnal stability cycle, a prevailing sector, some rain hours), readable by the scenario's CSV
  * reader, and the checked-in file is exactly what the generator writes (fixture comparison).
  */
 import { readFile } from 'node:fs/promises';
 import { describe, expect, it } from 'vitest';
-import { DEMO_SEED, demoYearCsv, makeDemoYear } from '../../../scripts/makeDemoWeather.ts';
-import { parseWeatherCsv } from '../../../scenario/weatherCsv.ts';
+import { DEMO_SEED, demoYearCsv, makeDemoYear } from '../../../scenarios/merrowdene-heat-plant-year/makeWeather.ts';
+import { parseWeatherCsv } from '../../../scenarios/format/weatherCsv.ts';
 import { resolveWeather } from '../../../solver/meteorology/resolveWeather.ts';
 import { sectorIndex } from '../../../solver/meteorology/windRoseTable.ts';
 

@@ -2,11 +2,11 @@
  * A small invented scenario for the series tests (hourly and wind rose): a 30 m stack and a ground
  * area source, three receptors downwind to the east and north, on a coarse grid. Not a test itself.
  */
-import { parseScenario } from '../../../scenario/schema.ts';
-import type { Scenario } from '../../../scenario/types.ts';
+import { parseScenario } from '../../../scenarios/format/schema.ts';
+import type { Scenario } from '../../../scenarios/format/types.ts';
 import { prepareScenarioGeometry } from '../../../solver/grid/scenarioGeometry.ts';
 import { seriesBaseInput } from '../../../solver/drivers/runScenario.ts';
-import type { SeriesBaseInput } from '../../../solver/drivers/hourlySeries.ts';
+import type { SeriesBaseInput } from '../../../solver/drivers/seriesSolves.ts';
 
 export const SITE = { lat: 52.31, lon: 4.62, landUse: 'rural' as const };
 
@@ -61,5 +61,5 @@ export function hoursFrom(start: string, count: number, build: (h: number) => Re
     airTemperature_K: 285,
     anemometerHeight_m: 10,
     ...build(h),
-  })) as unknown as import('../../../scenario/types.ts').WeatherHour[];
+  })) as unknown as import('../../../scenarios/format/types.ts').WeatherHour[];
 }

@@ -14,7 +14,7 @@ import {
   pasquillGiffordSigmas,
   sigmasFor,
 } from '../../../solver/reference/dispersionCurves.ts';
-import { STABILITY_CLASSES, type StabilityClass } from '../../../scenario/types.ts';
+import { STABILITY_CLASSES, type StabilityClass } from '../../../scenarios/format/types.ts';
 
 /** relative closeness */
 const expectRelative = (actual: number, expected: number, tolerance: number) =>

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { AreaSource, PointSource, Receptor } from '../../../scenario/types.ts';
+import type { AreaSource, PointSource, Receptor } from '../../../scenarios/format/types.ts';
 import type { PlacedAreaSource } from '../../../solver/drivers/types.ts';
 import { buildLocalGrid } from '../../../solver/grid/localGrid.ts';
 import { createLocalProjection } from '../../../solver/grid/projection.ts';

@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { WIND_PROFILE_FLOOR_M, powerLawExponent, windSpeedAtHeight_m_s } from '../../../solver/wind/powerLaw.ts';
 import type { ResolvedWeather } from '../../../solver/drivers/types.ts';
-import type { StabilityClass } from '../../../scenario/types.ts';
+import type { StabilityClass } from '../../../scenarios/format/types.ts';
 
 const weather = (stability: StabilityClass, windSpeed_m_s = 5, anemometerHeight_m = 10): ResolvedWeather => ({
   windSpeed_m_s,

@@ -1,0 +1,75 @@
+/**
+ * The `plumeplan` command line: dispatches to `run` and `validate`, answers `--help` and `--version`.
+ * `bin/plumeplan.mjs` calls `main` and sets the process exit code from its result.
+ */
+import { readFileSync } from 'node:fs';
+import { processIO, type CommandIO } from './io.ts';
+import { runCommand, type RunCommandOptions } from './run.ts';
+import { validateCommand } from './validate.ts';
+
+export const MAIN_USAGE = `plumeplan: screening of planned emission sources (screening estimates only)
+
+usage:
+  plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+  plumeplan validate FILE [FILE...]
+  plumeplan --help | --version
+
+commands:
+  run        run a scenario; write summary.json, receptors.csv and footprint.geojson into DIR
+  validate   check scenario files without running them
+
+Run "plumeplan COMMAND --help" for a command's options.
+Exit codes: 0 done, 2 invalid input, 1 internal failure.
+`;
+
+/** The version in package.json. */
+export function plumeplanVersion(): string {
+  const packageJson = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
+  return packageJson.version;
+}
+
+/**
+ * Run the command line.
+ *
+ * @param argv the arguments after the program name, e.g. ['run', 'scenario.json', '--out', 'out']
+ * @param io streams, environment and clock; default: the process's own
+ * @param options the steady solver `run` uses (default: in-process)
+ * @returns the exit code: 0 done, 2 invalid input, 1 internal failure
+ * @example process.exitCode = await main(process.argv.slice(2));
+ */
+export async function main(argv: string[], io: CommandIO = processIO(), options: RunCommandOptions = {}): Promise<number> {
+  const [command, ...rest] = argv;
+  try {
+    switch (command) {
+      case undefined:
+        io.stderr.write(`plumeplan: no command given\n\n${MAIN_USAGE}`);
+        return 2;
+      case '--help':
+      case '-h':
+      case 'help':
+        io.stdout.write(MAIN_USAGE);
+        return 0;
+      case '--version':
+      case '-v':
+        io.stdout.write(`plumeplan ${plumeplanVersion()}\n`);
+        return 0;
+      case 'run':
+        return await runCommand(rest, io, options);
+      case 'validate':
+        return await validateCommand(rest, {
+          stdout: (text) => io.stdout.write(text),
+          stderr: (text) => io.stderr.write(text),
+        });
+      default: {
+        const what = command.startsWith('-') ? `unknown option ${command}` : `unknown command "${command}"`;
+        io.stderr.write(`plumeplan: ${what}\n\n${MAIN_USAGE}`);
+        return 2;
+      }
+    }
+  } catch (error) {
+    // Commands report their own failures; this is the last line of defence.
+    io.stderr.write(`plumeplan: internal failure: ${error instanceof Error ? error.message : String(error)}\n`);
+    if (io.env.PLUMEPLAN_DEBUG === '1' && error instanceof Error && error.stack !== undefined) io.stderr.write(`${error.stack}\n`);
+    return 1;
+  }
+}

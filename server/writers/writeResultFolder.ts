@@ -1,0 +1,100 @@
+/**
+ * Writes the result folder: summary.json, receptors.csv, footprint.geojson and any extra files the run
+ * produced (a wind-rose picture, for instance). The folder is created if it does not exist; files of
+ * the same names are replaced, other files in it are left alone.
+ */
+import { mkdir, stat, writeFile } from 'node:fs/promises';
+import path from 'node:path';
+import type { Scenario } from '../../scenarios/format/types.ts';
+import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
+import { footprintBands, type FootprintCollection } from './footprint.ts';
+import { buildReceptorsCsv } from './receptorsCsv.ts';
+import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
+import { buildSummary, type ResultSummary } from './summary.ts';
+import { windRoseSvg } from './windRoseSvg.ts';
+
+export const SUMMARY_FILE = 'summary.json';
+export const RECEPTORS_FILE = 'receptors.csv';
+export const FOOTPRINT_FILE = 'footprint.geojson';
+export const WIND_ROSE_FILE = 'windrose.svg';
+
+export interface ResultFolderOptions {
+  /** footprint levels, positive and increasing [ug/m3]; default: round levels across the field's range */
+  levels_ug_m3?: number[];
+  /** height of the ground-level field [m]; default 1.5 */
+  groundLevelHeight_m?: number;
+}
+
+export interface WrittenResultFolder {
+  /** the folder, as given */
+  directory: string;
+  /** file names written, in the order written */
+  files: string[];
+  summary: ResultSummary;
+  footprint: FootprintCollection;
+}
+
+/**
+ * Write a run's result folder.
+ *
+ * @param directory folder to write into (created, with its parents, if missing)
+ * @param scenario the parsed scenario
+ * @param result what the run handed back
+ * @param options footprint levels and ground-level height
+ * @returns the folder, the file names and the summary and footprint as written
+ * @throws RangeError when `directory` exists and is not a folder, or the levels are invalid
+ * @example
+ *   const written = await writeResultFolder('out/demo', scenario, await runScenario(scenario, {}));
+ */
+export async function writeResultFolder(
+  directory: string,
+  scenario: Scenario,
+  result: ScenarioRunResult,
+  options: ResultFolderOptions = {},
+): Promise<WrittenResultFolder> {
+  const groundLevelHeight_m = options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m;
+
+  // Build everything before touching the disk, so a failure leaves no half-written folder.
+  const footprint = footprintBands(result.footprint_ug_m3, result.grid, {
+    levels_ug_m3: options.levels_ug_m3,
+    scenarioName: scenario.name,
+    statistic: result.footprintStatistic,
+    height_m: groundLevelHeight_m,
+  });
+  const summary = buildSummary(scenario, result, {
+    levels_ug_m3: footprint.properties.levels_ug_m3,
+    groundLevelHeight_m,
+  });
+  const receptorsCsv = buildReceptorsCsv(scenario, result);
+
+  const existing = await stat(directory).catch(() => null);
+  if (existing !== null && !existing.isDirectory()) {
+    throw new RangeError(`result folder ${directory}: exists and is not a folder; give a folder to write the results into`);
+  }
+  await mkdir(directory, { recursive: true });
+  const contents: [string, string][] = [
+    [SUMMARY_FILE, `${JSON.stringify(summary, null, 2)}\n`],
+    [RECEPTORS_FILE, receptorsCsv],
+    [FOOTPRINT_FILE, formatFootprint(footprint)],
+    ...(result.windRose ? [[WIND_ROSE_FILE, windRoseSvg(result.windRose.table, { caption: result.windRose.caption })] as [string, string]] : []),
+  ];
+  for (const [name, text] of contents) await writeFile(path.join(directory, name), text, 'utf8');
+  return { directory, files: contents.map(([name]) => name), summary, footprint };
+}
+
+/**
+ * footprint.geojson's text: the collection's properties indented for reading, then one feature per line
+ * (a band's coordinates run to thousands of numbers, which would be unreadable one per line).
+ */
+export function formatFootprint(collection: FootprintCollection): string {
+  const properties = JSON.stringify(collection.properties, null, 2).replaceAll('\n', '\n  ');
+  const features = collection.features.map((feature) => `    ${JSON.stringify(feature)}`).join(',\n');
+  return (
+    '{\n' +
+    `  "type": "FeatureCollection",\n` +
+    `  "properties": ${properties},\n` +
+    `  "features": [${features.length > 0 ? `\n${features}\n  ` : ''}]\n` +
+    '}\n'
+  );
+}
+

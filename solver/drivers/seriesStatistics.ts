@@ -1,0 +1,160 @@
+/**
+ * Statistics of a weather series at receptors and on the ground: means, maxima and each standard's
+ * statistic (percentile of period means, exceedance counts), from fields stored either as references
+ * into distinct solves or as one array per hour.
+ */
+import type { Assessment, AirQualityStandard } from '../../scenarios/format/types.ts';
+import { averagingPlan, standardColumnKey, standardExceedanceKey, standardFigures, type AveragingPlan } from '../diagnostics/statistics.ts';
+import type { ReceptorColumn } from './types.ts';
+import type { SeriesBaseInput, SeriesFields } from './seriesSolves.ts';
+
+/** Access to hour h's value at receptor r and column c, whichever way the fields are stored. */
+export interface HourlyValues {
+  hours: number;
+  receptorValue(h: number, r: number): number;
+  groundValue(h: number, column: number): number;
+}
+
+export function hourlyValuesFromFields(fields: SeriesFields): HourlyValues {
+  const { solves, solveOfHour, scaleOfHour } = fields;
+  const grounds = solves.map((s) => s.ground_ug_m3);
+  const receptors = solves.map((s) => s.receptors_ug_m3);
+  return {
+    hours: solveOfHour.length,
+    receptorValue: (h, r) => receptors[solveOfHour[h]][r] * scaleOfHour[h],
+    groundValue: (h, column) => grounds[solveOfHour[h]][column] * scaleOfHour[h],
+  };
+}
+
+/** Hour-by-hour fields stored one Float32Array per hour (continuous runs). */
+export function hourlyValuesFromArrays(receptors: Float64Array[], grounds: Float32Array[]): HourlyValues {
+  return {
+    hours: receptors.length,
+    receptorValue: (h, r) => receptors[h][r],
+    groundValue: (h, column) => grounds[h][column],
+  };
+}
+
+/** One standard's result at the receptors and on the ground grid. */
+interface StandardResult {
+  standard: AirQualityStandard;
+  plan: AveragingPlan;
+  receptorValues: Float64Array;
+  receptorExceedances: Float64Array;
+  groundValues: Float64Array;
+}
+
+/** Statistics of a series of fields at the receptors and on the ground grid. */
+export interface SeriesStatistics {
+  receptorMean: Float64Array;
+  receptorMax: Float64Array;
+  groundMean: Float64Array;
+  groundMax: Float64Array;
+  standards: StandardResult[];
+}
+
+/**
+ * Mean, maximum and each standard's statistic at every receptor and ground column.
+ */
+export function seriesStatistics(
+  values: HourlyValues,
+  receptorCount: number,
+  columns: number,
+  hourStarts_ms: Float64Array,
+  offsetMinutes: number,
+  assessment: Assessment | undefined,
+): SeriesStatistics {
+  const hours = values.hours;
+  const standards = (assessment?.standards ?? []).map((standard) => ({
+    standard,
+    plan: averagingPlan(hourStarts_ms, offsetMinutes, standard.averaging_h),
+  }));
+  const background = assessment?.background_ug_m3 ?? 0;
+  const series = new Float64Array(hours);
+  const work = new Float64Array(hours);
+  const summarise = (fill: (series: Float64Array) => void) => {
+    fill(series);
+    let sum = 0;
+    let largest = Number.NEGATIVE_INFINITY;
+    for (let h = 0; h < hours; h++) {
+      sum += series[h];
+      if (series[h] > largest) largest = series[h];
+    }
+    const figures = standards.map(({ standard, plan }) => standardFigures(series, plan, standard, background, work));
+    return { mean: sum / hours, max: largest, figures };
+  };
+  const receptorMean = new Float64Array(receptorCount);
+  const receptorMax = new Float64Array(receptorCount);
+  const results: StandardResult[] = standards.map(({ standard, plan }) => ({
+    standard,
+    plan,
+    receptorValues: new Float64Array(receptorCount),
+    receptorExceedances: new Float64Array(receptorCount),
+    groundValues: new Float64Array(columns),
+  }));
+  for (let r = 0; r < receptorCount; r++) {
+    const s = summarise((out) => {
+      for (let h = 0; h < hours; h++) out[h] = values.receptorValue(h, r);
+    });
+    receptorMean[r] = s.mean;
+    receptorMax[r] = s.max;
+    s.figures.forEach((f, i) => {
+      results[i].receptorValues[r] = f.value_ug_m3;
+      results[i].receptorExceedances[r] = f.exceedances;
+    });
+  }
+  const groundMean = new Float64Array(columns);
+  const groundMax = new Float64Array(columns);
+  for (let c = 0; c < columns; c++) {
+    const s = summarise((out) => {
+      for (let h = 0; h < hours; h++) out[h] = values.groundValue(h, c);
+    });
+    groundMean[c] = s.mean;
+    groundMax[c] = s.max;
+    s.figures.forEach((f, i) => {
+      results[i].groundValues[c] = f.value_ug_m3;
+    });
+  }
+  return { receptorMean, receptorMax, groundMean, groundMax, standards: results };
+}
+
+/** The receptor columns of a series: mean, max, then each standard's statistic and exceedance count. */
+export function seriesReceptorColumns(
+  receptorMean: Float64Array,
+  receptorMax: Float64Array,
+  standards: { standard: AirQualityStandard; receptorValues: Float64Array; receptorExceedances: Float64Array }[],
+): ReceptorColumn[] {
+  const columns: ReceptorColumn[] = [
+    { key: 'mean_ug_m3', values: receptorMean },
+    { key: 'max_ug_m3', values: receptorMax },
+  ];
+  const used = new Set(columns.map((c) => c.key));
+  for (const { standard, receptorValues, receptorExceedances } of standards) {
+    for (const [key, values] of [
+      [standardColumnKey(standard), receptorValues],
+      [standardExceedanceKey(standard), receptorExceedances],
+    ] as const) {
+      let unique = key;
+      for (let n = 2; used.has(unique); n++) unique = `${key}_${n}`;
+      used.add(unique);
+      columns.push({ key: unique, values });
+    }
+  }
+  return columns;
+}
+
+/** Peak of a ground field: value and position of the column centre [m]. */
+export function groundPeak(base: SeriesBaseInput, field: ArrayLike<number>): { value_ug_m3: number; x_m: number; y_m: number } {
+  let best = 0;
+  for (let c = 1; c < field.length; c++) if (field[c] > field[best]) best = c;
+  const { grid } = base;
+  const i = best % grid.nx;
+  const j = (best - i) / grid.nx;
+  return {
+    value_ug_m3: field[best],
+    x_m: grid.xWest_m + (i + 0.5) * grid.spacing_m,
+    y_m: grid.ySouth_m + (j + 0.5) * grid.spacing_m,
+  };
+}
+
+/** The standards' part of summary.json for a series (or a wind rose). */
