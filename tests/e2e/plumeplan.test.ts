@@ -42,7 +42,10 @@ describe('plumeplan run on the demo scenario, Gaussian mode', () => {
   });
 
   it('exits 0 and says where the results went and what the peak is', () => {
-    expect(run.stderr).toBe('');
+    // stderr carries nothing but progress lines (shown only when a run takes over a second, which
+    // depends on the machine's load, so their presence is not asserted either way)
+    const otherLines = run.stderr.split(/[\r\n]+/).filter((line) => line.trim() !== '' && !/^\s*\d+%\s/.test(line));
+    expect(otherLines).toEqual([]);
     expect(run.status).toBe(0);
     expect(run.stdout).toContain(`Results written to ${out}: summary.json, receptors.csv, footprint.geojson`);
     expect(run.stdout).toMatch(/Peak ground-level concentration: \d/);
