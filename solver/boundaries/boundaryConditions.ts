@@ -5,7 +5,8 @@
  *   domain (zero-gradient ghost cells: the outgoing flux is the edge cell's own upwind flux, no diffusion
  *   across) and brings in air at the background concentration where it blows in or is calm (ghost cells at
  *   the background, so diffusion across that side sees it too). `PeriodicBoundaries` wraps the domain (for
- *   verification). Every flux through a side is booked as outflow (negative when it comes in).
+ *   verification). `AdjointOpenBoundaries` are the transpose of the open sides, for the adjoint solves of
+ *   ../siting/ (see there). Every flux through a side is booked as outflow (negative when it comes in).
  * - Ground: dry deposition, a downward flux v_d C(lowest layer) through the ground, solved implicitly with
  *   the vertical diffusion and booked as dry-deposited; v_d = 0 is a no-flux ground.
  * - Lid: no flux through the layer face nearest min(mixing height, grid top); layers above it still carry
@@ -26,7 +27,45 @@ export interface PeriodicLateralBoundaries {
   readonly name: string;
 }
 
-export type LateralBoundaries = OpenLateralBoundaries | PeriodicLateralBoundaries;
+/**
+ * The transpose of `OpenBoundaries(0)` for an adjoint solve, whose wind is the forward wind reversed.
+ * The forward sides give, per layer and side (a = |u| / dx, d = K_h / dx^2):
+ * - forward inflow (ghost 0): the edge cell's diagonal a + 2d; its transpose is a ghost of 0 on the
+ *   adjoint's outflow side;
+ * - forward outflow (ghost = edge value, no diffusion across): diagonal a + d; on the adjoint's inflow side
+ *   the reversed sweep reads the ghost with weight a + d, so the ghost that gives the transpose is
+ *   d / (a + d) times the edge value, i.e. K_h / (|u| dx + K_h): the adjoint's total flux through that side
+ *   vanishes (the discrete form of the continuous adjoint condition u psi + K dpsi/dn = 0 at an outflow).
+ * Calm sides (u = 0) are ghost 0 both ways. Only the first ghost counts for first-order upwind; the second
+ * (read by the limited slopes) is set equal to it.
+ */
+export interface AdjointOpenLateralBoundaries {
+  readonly kind: 'adjointOpen';
+  readonly name: string;
+  /** per layer: ghost / edge value on the x side the (adjoint) wind blows in through, K_h / (|u| dx + K_h) */
+  readonly inflowRatioX: Float64Array;
+  /** per layer: the same on the y side, K_h / (|v| dx + K_h) */
+  readonly inflowRatioY: Float64Array;
+}
+
+export type LateralBoundaries = OpenLateralBoundaries | PeriodicLateralBoundaries | AdjointOpenLateralBoundaries;
+
+/**
+ * The adjoint sides of `OpenBoundaries(0)` (see AdjointOpenLateralBoundaries).
+ *
+ * @param spacing_m horizontal cell size [m]
+ * @param horizontal_m2_s horizontal diffusivity per layer [m2/s] (the forward model's)
+ * @param u_m_s, v_m_s the wind per layer [m/s] (either sign: only the speeds enter)
+ */
+export function AdjointOpenBoundaries(spacing_m: number, horizontal_m2_s: Float64Array, u_m_s: Float64Array, v_m_s: Float64Array): AdjointOpenLateralBoundaries {
+  const ratio = (diffusivity: number, speed: number): number => {
+    const denominator = Math.abs(speed) * spacing_m + diffusivity;
+    return denominator > 0 ? diffusivity / denominator : 0;
+  };
+  const inflowRatioX = Float64Array.from(horizontal_m2_s, (K, k) => ratio(K, u_m_s[k]));
+  const inflowRatioY = Float64Array.from(horizontal_m2_s, (K, k) => ratio(K, v_m_s[k]));
+  return Object.freeze({ kind: 'adjointOpen', name: 'AdjointOpenBoundaries', inflowRatioX, inflowRatioY });
+}
 
 /** Outflow where the wind leaves, inflow at a background concentration [g/m3] (default 0) elsewhere. */
 export function OpenBoundaries(background_g_m3 = 0): OpenLateralBoundaries {
@@ -115,10 +154,14 @@ export function fillGhostCells(
   const { nx, ny, nz, rowStride, planeStride } = layout;
   const periodic = lateral.kind === 'periodic';
   const background = lateral.kind === 'open' ? lateral.background_g_m3 : 0;
+  const adjoint = lateral.kind === 'adjointOpen' ? lateral : null;
   for (let k = 0; k < nz; k++) {
     const plane = k * planeStride;
     const westOutflow = u_m_s[k] < 0;
     const eastOutflow = u_m_s[k] > 0;
+    // Adjoint sides: ghost = ratio x edge where the wind blows in, 0 where it blows out (see above).
+    const ratioX = adjoint ? adjoint.inflowRatioX[k] : 0;
+    const ratioY = adjoint ? adjoint.inflowRatioY[k] : 0;
     for (let j = Math.max(0, jFrom - 2); j < jTo; j++) {
       const first = plane + rowStride * (j + GHOST) + GHOST;
       const last = first + nx - 1;
@@ -127,6 +170,13 @@ export function fillGhostCells(
         field[first - 2] = field[nx >= 2 ? last - 1 : last];
         field[last + 1] = field[first];
         field[last + 2] = field[nx >= 2 ? first + 1 : first];
+      } else if (adjoint) {
+        const west = eastOutflow ? ratioX * field[first] : 0;
+        field[first - 1] = west;
+        field[first - 2] = west;
+        const east = westOutflow ? ratioX * field[last] : 0;
+        field[last + 1] = east;
+        field[last + 2] = east;
       } else {
         const west = westOutflow ? field[first] : background;
         field[first - 1] = west;
@@ -145,6 +195,10 @@ export function fillGhostCells(
         if (periodic) {
           field[firstRow - rowStride + i] = field[lastRow + i];
           field[firstRow - 2 * rowStride + i] = field[(ny >= 2 ? lastRow - rowStride : lastRow) + i];
+        } else if (adjoint) {
+          const south = northOutflow ? ratioY * field[firstRow + i] : 0;
+          field[firstRow - rowStride + i] = south;
+          field[firstRow - 2 * rowStride + i] = south;
         } else {
           const south = southOutflow ? field[firstRow + i] : background;
           field[firstRow - rowStride + i] = south;
@@ -157,6 +211,10 @@ export function fillGhostCells(
         if (periodic) {
           field[lastRow + rowStride + i] = field[firstRow + i];
           field[lastRow + 2 * rowStride + i] = field[(ny >= 2 ? firstRow + rowStride : firstRow) + i];
+        } else if (adjoint) {
+          const north = southOutflow ? ratioY * field[lastRow + i] : 0;
+          field[lastRow + rowStride + i] = north;
+          field[lastRow + 2 * rowStride + i] = north;
         } else {
           const north = northOutflow ? field[lastRow + i] : background;
           field[lastRow + rowStride + i] = north;

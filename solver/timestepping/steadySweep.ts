@@ -509,7 +509,8 @@ export function solveSteadyState(model: DispersionModel, options: SteadySolveOpt
   const planeStride = layout.planeStride;
   const lateral = model.boundaries.lateral;
   // Skipping quiet columns needs zero inflow from the sides and no wrap-around.
-  const activeOnly = options.activeColumnsOnly !== false && lateral.kind === 'open' && lateral.background_g_m3 === 0;
+  // (The adjoint sides bring in only a fraction of the edge's own value: nothing from outside either.)
+  const activeOnly = options.activeColumnsOnly !== false && ((lateral.kind === 'open' && lateral.background_g_m3 === 0) || lateral.kind === 'adjointOpen');
   const region = activeColumnsFor(coefficients, field, activeOnly, physics.sourceCells);
   const shape: RangeShape = { ny: grid.ny, layers: layersSolved, rowStride: layout.rowStride, planeStride, first: region.first, end: region.end };
   correction.fill(0);
