@@ -55,6 +55,63 @@ function format(value: number, digits = 3): string {
   return Number(value.toPrecision(digits)).toString();
 }
 
+/** A point source's steady Gaussian plume, with its effective height and what was applied. */
+export interface PointSourcePlume {
+  plume: GaussianPlume;
+  /** stack height + final plume rise [m] */
+  effectiveHeight_m: number;
+  /** the dispersion curves used */
+  curveDescription: string;
+  notes: string[];
+}
+
+/**
+ * The Gaussian plume of one point source in a weather state, in the source's own frame (x downwind, y
+ * crosswind, z up, metres from the stack base): Briggs plume rise with the wind at the stack top, the
+ * profile wind at the effective height, the class's curves, losses over the travel time, deposition by
+ * source depletion out to maxDistance_m. Nothing in it depends on where the stack stands (flat terrain),
+ * which is what the siting map (../siting/) relies on.
+ *
+ * @param lossRate_per_s decay plus washout [1/s]
+ * @param maxDistance_m farthest travel the depletion table covers [m]
+ */
+export function pointSourcePlume(point: PlacedPointSource, input: Pick<SteadyRunInput, 'weather' | 'pollutant' | 'dispersion' | 'landUse' | 'windProfile'>, lossRate_per_s: number, maxDistance_m: number): PointSourcePlume {
+  const { weather, dispersion, landUse, windProfile } = input;
+  const notes: string[] = [];
+  requireNumber(`source ${point.id}: height_m`, point.height_m, 'a finite height >= 0 m', Number.isFinite(point.height_m) && point.height_m >= 0);
+  let effective_m = point.height_m;
+  let riseAt: ((x_m: number) => number) | undefined;
+  if (point.plumeRise) {
+    const rise = plumeRiseFor(point, weather, landUse, windProfile);
+    effective_m = point.height_m + rise.finalRise_m;
+    riseAt = rise.riseAt;
+    notes.push(
+      `source ${point.id}: Briggs plume rise (${rise.regime}), ${format(rise.finalRise_m)} m above the ${format(point.height_m)} m stack, ` +
+        `reached ${format(rise.distanceToFinalRise_m)} m downwind (gradual rise before that), wind at stack top ${format(rise.windSpeed_m_s)} m/s`,
+    );
+  }
+  const windSpeed_m_s = windSpeedAtHeight_m_s(weather, effective_m, landUse, windProfile);
+  const sigmas = sigmasFor(dispersion, weather.stability, landUse, windSpeed_m_s);
+  const plume = new GaussianPlume({
+    emission_g_s: point.emission_g_s,
+    windSpeed_m_s,
+    releaseHeight_m: point.height_m,
+    riseAt,
+    mixingHeight_m: weather.mixingHeight_m,
+    sigmas,
+    lossRate_per_s,
+    depositionVelocity_m_s: input.pollutant.depositionVelocity_m_s,
+    maxDistance_m,
+  });
+  if (!plume.lidApplied && Number.isFinite(weather.mixingHeight_m)) {
+    notes.push(
+      `source ${point.id}: effective height ${format(effective_m)} m is at or above the mixing height ${format(weather.mixingHeight_m)} m; ` +
+        'the lid is ignored for this plume (ground reflection only, a screening choice)',
+    );
+  }
+  return { plume, effectiveHeight_m: effective_m, curveDescription: sigmas.description, notes };
+}
+
 /**
  * Run the Gaussian reference mode for one steady weather state.
  *
@@ -113,38 +170,10 @@ export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {
   for (const source of input.sources) {
     if (source.kind === 'point') {
       const point: PlacedPointSource = source;
-      requireNumber(`source ${point.id}: height_m`, point.height_m, 'a finite height >= 0 m', Number.isFinite(point.height_m) && point.height_m >= 0);
-      let effective_m = point.height_m;
-      let riseAt: ((x_m: number) => number) | undefined;
-      if (point.plumeRise) {
-        const rise = plumeRiseFor(point, weather, landUse, windProfile);
-        effective_m = point.height_m + rise.finalRise_m;
-        riseAt = rise.riseAt;
-        notes.push(
-          `source ${point.id}: Briggs plume rise (${rise.regime}), ${format(rise.finalRise_m)} m above the ${format(point.height_m)} m stack, ` +
-            `reached ${format(rise.distanceToFinalRise_m)} m downwind (gradual rise before that), wind at stack top ${format(rise.windSpeed_m_s)} m/s`,
-        );
-      }
-      const windSpeed_m_s = windSpeedAtHeight_m_s(weather, effective_m, landUse, windProfile);
-      const sigmas = sigmasFor(dispersion, weather.stability, landUse, windSpeed_m_s);
-      curveDescription = sigmas.description;
-      const plume = new GaussianPlume({
-        emission_g_s: point.emission_g_s,
-        windSpeed_m_s,
-        releaseHeight_m: point.height_m,
-        riseAt,
-        mixingHeight_m,
-        sigmas,
-        lossRate_per_s,
-        depositionVelocity_m_s,
-        maxDistance_m: Math.hypot(extentEast_m, extentNorth_m) + Math.hypot(point.x_m - grid.xWest_m, point.y_m - grid.ySouth_m) + 1000,
-      });
-      if (!plume.lidApplied && Number.isFinite(mixingHeight_m)) {
-        notes.push(
-          `source ${point.id}: effective height ${format(effective_m)} m is at or above the mixing height ${format(mixingHeight_m)} m; ` +
-            'the lid is ignored for this plume (ground reflection only, a screening choice)',
-        );
-      }
+      const maxDistance_m = Math.hypot(extentEast_m, extentNorth_m) + Math.hypot(point.x_m - grid.xWest_m, point.y_m - grid.ySouth_m) + 1000;
+      const { plume, effectiveHeight_m: effective_m, notes: plumeNotes, curveDescription: curves } = pointSourcePlume(point, input, lossRate_per_s, maxDistance_m);
+      curveDescription = curves;
+      notes.push(...plumeNotes);
       prepared.push({ kind: 'point', x_m: point.x_m, y_m: point.y_m, plume });
       reports.push({ id: point.id, x_m: point.x_m, y_m: point.y_m, effectiveHeight_m: effective_m });
     } else {
