@@ -30,23 +30,11 @@ import { solveSteady } from './solveSteady.ts';
 import type { ResolvedWeather, ScenarioRunResult } from './types.ts';
 
 /**
- * Run wind-rose weather.
+ * The resolved weather of each cell of a rose, with its frequency.
  *
- * @param base grid, placed sources and receptors, pollutant, dispersion, land use, wind profile
- * @param weather the rose: sector width, cells with frequencies summing to 1, rain, temperature, anemometer height
- * @param options mode, site, assessment, progress, solver
- * @returns receptor columns mean_ug_m3, max_ug_m3 (the worst cell) and per hourly or long-term standard
- *   its statistic and exceedances; footprint = the mean ground-level field
- * @throws RangeError naming the cell and field for a bad cell
- * @example const result = await runWindRose(base, scenario.weather, { mode: 'gaussian', site });
+ * @throws RangeError naming the cell and field for a bad cell, or frequencies that do not sum to 1
  */
-export async function runWindRose(
-  base: SeriesBaseInput,
-  weather: WindRoseWeather,
-  options: SeriesRunOptions,
-): Promise<ScenarioRunResult> {
-  const started = performance.now();
-  const control = options.control ?? {};
+export function windRoseStates(weather: WindRoseWeather, site: { lat: number; lon: number }): { states: ResolvedWeather[]; frequencies: Float64Array } {
   if (weather.cells.length === 0) throw new RangeError('weather.cells: no cells (at least one is needed)');
   let frequencySum = 0;
   const states: ResolvedWeather[] = weather.cells.map((cell, i) => {
@@ -64,7 +52,7 @@ export async function runWindRose(
         airTemperature_K: weather.airTemperature_K,
         anemometerHeight_m: weather.anemometerHeight_m,
       },
-      options.site,
+      site,
       `weather.cells[${i}]`,
     );
   });
@@ -72,6 +60,28 @@ export async function runWindRose(
     throw new RangeError(`weather.cells: the frequencies sum to ${frequencySum}; allowed: 1 (within 0.001)`);
   }
   const frequencies = Float64Array.from(weather.cells, (cell) => cell.frequency);
+  return { states, frequencies };
+}
+
+/**
+ * Run wind-rose weather.
+ *
+ * @param base grid, placed sources and receptors, pollutant, dispersion, land use, wind profile
+ * @param weather the rose: sector width, cells with frequencies summing to 1, rain, temperature, anemometer height
+ * @param options mode, site, assessment, progress, solver
+ * @returns receptor columns mean_ug_m3, max_ug_m3 (the worst cell) and per hourly or long-term standard
+ *   its statistic and exceedances; footprint = the mean ground-level field
+ * @throws RangeError naming the cell and field for a bad cell
+ * @example const result = await runWindRose(base, scenario.weather, { mode: 'gaussian', site });
+ */
+export async function runWindRose(
+  base: SeriesBaseInput,
+  weather: WindRoseWeather,
+  options: SeriesRunOptions,
+): Promise<ScenarioRunResult> {
+  const started = performance.now();
+  const control = options.control ?? {};
+  const { states, frequencies } = windRoseStates(weather, options.site);
 
   const rules = reuseRules(base, options.speedScaling ?? true);
   const fields = await solveWithReuse(base, states, options.mode, {
