@@ -52,9 +52,38 @@ export async function writeResultFolder(
   result: ScenarioRunResult,
   options: ResultFolderOptions = {},
 ): Promise<WrittenResultFolder> {
-  const groundLevelHeight_m = options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m;
-
   // Build everything before touching the disk, so a failure leaves no half-written folder.
+  const built = buildResultFiles(scenario, result, options);
+
+  const existing = await stat(directory).catch(() => null);
+  if (existing !== null && !existing.isDirectory()) {
+    throw new RangeError(`result folder ${directory}: exists and is not a folder; give a folder to write the results into`);
+  }
+  await mkdir(directory, { recursive: true });
+  for (const [name, text] of built.contents) await writeFile(path.join(directory, name), text, 'utf8');
+  return { directory, files: built.contents.map(([name]) => name), summary: built.summary, footprint: built.footprint };
+}
+
+/** The result folder's files as text, before anything is written. */
+export interface BuiltResultFiles {
+  /** [file name, text] in the order they are written */
+  contents: [string, string][];
+  summary: ResultSummary;
+  footprint: FootprintCollection;
+}
+
+/**
+ * Build the result folder's files in memory: what `writeResultFolder` writes, and what the server
+ * stores for a run.
+ *
+ * @param scenario the parsed scenario
+ * @param result what the run handed back
+ * @param options footprint levels and ground-level height
+ * @throws RangeError when the levels are invalid
+ * @example const { contents } = buildResultFiles(scenario, result);
+ */
+export function buildResultFiles(scenario: Scenario, result: ScenarioRunResult, options: ResultFolderOptions = {}): BuiltResultFiles {
+  const groundLevelHeight_m = options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m;
   const footprint = footprintBands(result.footprint_ug_m3, result.grid, {
     levels_ug_m3: options.levels_ug_m3,
     scenarioName: scenario.name,
@@ -66,20 +95,13 @@ export async function writeResultFolder(
     groundLevelHeight_m,
   });
   const receptorsCsv = buildReceptorsCsv(scenario, result);
-
-  const existing = await stat(directory).catch(() => null);
-  if (existing !== null && !existing.isDirectory()) {
-    throw new RangeError(`result folder ${directory}: exists and is not a folder; give a folder to write the results into`);
-  }
-  await mkdir(directory, { recursive: true });
   const contents: [string, string][] = [
     [SUMMARY_FILE, `${JSON.stringify(summary, null, 2)}\n`],
     [RECEPTORS_FILE, receptorsCsv],
     [FOOTPRINT_FILE, formatFootprint(footprint)],
     ...(result.windRose ? [[WIND_ROSE_FILE, windRoseSvg(result.windRose.table, { caption: result.windRose.caption })] as [string, string]] : []),
   ];
-  for (const [name, text] of contents) await writeFile(path.join(directory, name), text, 'utf8');
-  return { directory, files: contents.map(([name]) => name), summary, footprint };
+  return { contents, summary, footprint };
 }
 
 /**

@@ -1,0 +1,169 @@
+/**
+ * Runs: submit (202 at once; an identical earlier run answers instead of a second solve), read the
+ * status, follow progress as server-sent events, cancel, list, and download the result files.
+ */
+import { Router, type Response } from 'express';
+import { z } from 'zod';
+import type { RunManager, RunUpdate } from '../../jobs/runManager.ts';
+import { RESULT_NAME_PATTERN, type ResultFileStore } from '../../storage/resultFiles.ts';
+import { FINAL_STATUSES, type RunRecord } from '../../storage/runStore.ts';
+import { idSchema, pageQuerySchema, parseRequest, runRequestSchema } from '../apiSchemas.ts';
+import { ApiError, badRequest } from '../errors.ts';
+import { idParam, requireJson } from '../requestChecks.ts';
+import type { RunStore } from '../../storage/runStore.ts';
+
+/** Seconds between keep-alive comments on an idle progress stream. */
+const KEEP_ALIVE_s = 15;
+
+export interface RunRouteDependencies {
+  manager: RunManager;
+  runs: RunStore;
+  files: ResultFileStore;
+  /** who is asking, for the per-client limit */
+  clientOf: (request: import('express').Request) => string;
+}
+
+export function runRoutes(deps: RunRouteDependencies): Router {
+  const { manager, runs, files } = deps;
+  const router = Router();
+
+  router.post('/', requireJson, (request, response) => {
+    const body = parseRequest(runRequestSchema, request.body);
+    const { run, reused } = manager.submit({
+      scenarioId: body.scenarioId,
+      revision: body.revision,
+      kind: body.kind ?? 'scenario',
+      mode: body.mode,
+      client: deps.clientOf(request),
+    });
+    const url = `/api/runs/${run.id}`;
+    response
+      .status(reused && run.status === 'done' ? 200 : 202)
+      .location(url)
+      .json({ id: run.id, status: run.status, reused, url });
+  });
+
+  router.get('/', (request, response) => {
+    const query = parseRequest(pageQuerySchema.extend({ scenarioId: idSchema.optional() }), request.query, 'query.');
+    const page = runs.list({ scenarioId: query.scenarioId, limit: query.limit, offset: query.offset });
+    response.json({ items: page.items.map(runJson), total: page.total, limit: query.limit, offset: query.offset });
+  });
+
+  router.get('/:id', (request, response) => {
+    response.json(runJson(manager.get(idParam(request, 'id'))));
+  });
+
+  router.post('/:id/cancel', (request, response) => {
+    response.json(runJson(manager.cancel(idParam(request, 'id'))));
+  });
+
+  router.get('/:id/events', (request, response) => {
+    const id = idParam(request, 'id');
+    const run = manager.get(id);
+    response.writeHead(200, {
+      'Content-Type': 'text/event-stream; charset=utf-8',
+      'Cache-Control': 'no-cache, no-transform',
+      Connection: 'keep-alive',
+      'X-Accel-Buffering': 'no',
+    });
+    response.write('retry: 2000\n\n');
+    sendEvent(response, 'status', updateOf(run));
+    if (FINAL_STATUSES.includes(run.status)) {
+      response.end();
+      return;
+    }
+    const keepAlive = setInterval(() => response.write(': keep-alive\n\n'), KEEP_ALIVE_s * 1000);
+    keepAlive.unref();
+    const stop = (): void => {
+      clearInterval(keepAlive);
+      unsubscribe();
+    };
+    const unsubscribe = manager.subscribe(id, (update) => {
+      const final = FINAL_STATUSES.includes(update.status);
+      sendEvent(response, final || update.status !== 'running' || update.progress === 0 ? 'status' : 'progress', update);
+      if (final) {
+        stop();
+        response.end();
+      }
+    });
+    // A status change between reading the row and subscribing would be missed: look once more.
+    const latest = manager.get(id);
+    if (latest.status !== run.status) {
+      sendEvent(response, 'status', updateOf(latest));
+      if (FINAL_STATUSES.includes(latest.status)) {
+        stop();
+        response.end();
+        return;
+      }
+    }
+    request.on('close', stop);
+  });
+
+  router.get('/:id/results/:name', (request, response, next) => {
+    const id = idParam(request, 'id');
+    const name = request.params.name;
+    if (!RESULT_NAME_PATTERN.test(name)) throw badRequest('name', name, 'the name of one of the run\'s result files (see "results" in GET /api/runs/:id)');
+    const run = manager.get(id);
+    if (run.status !== 'done') {
+      throw new ApiError(409, {
+        error: `run ${id} is ${run.status}; its results exist once it is done`,
+        field: 'id',
+        value: id,
+        allowed: 'a run whose status is done',
+      });
+    }
+    const file = run.results.find((result) => result.name === name);
+    if (file === undefined) {
+      throw new ApiError(404, {
+        error: `run ${id} has no result file ${JSON.stringify(name)}; it has ${run.results.map((result) => result.name).join(', ')}`,
+        field: 'name',
+        value: name,
+        allowed: run.results.map((result) => result.name).join(', '),
+      });
+    }
+    response.set({
+      'Content-Type': file.contentType,
+      'Content-Length': String(file.bytes),
+      ETag: `"${file.sha256}"`,
+      'Cache-Control': 'private, max-age=31536000, immutable',
+      'Content-Disposition': `inline; filename="${name}"`,
+    });
+    if (request.fresh) {
+      response.status(304).end();
+      return;
+    }
+    const stream = files.read(id, name);
+    stream.on('error', next);
+    stream.pipe(response);
+  });
+
+  return router;
+}
+
+/** A run as the API shows it. */
+export function runJson(run: RunRecord): z.input<typeof import('../apiSchemas.ts').runSchema> {
+  return {
+    id: run.id,
+    scenarioId: run.scenarioId,
+    revision: run.revision,
+    checksum: run.checksum,
+    kind: run.kind as 'scenario',
+    mode: run.options.mode as 'grid' | 'gaussian',
+    status: run.status,
+    progress: run.progress,
+    message: run.message,
+    error: run.error,
+    createdAt: run.createdAt,
+    startedAt: run.startedAt,
+    finishedAt: run.finishedAt,
+    results: run.results.map((file) => ({ ...file, url: `/api/runs/${run.id}/results/${file.name}` })),
+  };
+}
+
+function updateOf(run: RunRecord): RunUpdate {
+  return { id: run.id, status: run.status, progress: run.progress, message: run.message, error: run.error };
+}
+
+function sendEvent(response: Response, event: string, data: RunUpdate): void {
+  response.write(`event: ${event}\ndata: ${JSON.stringify(data)}\n\n`);
+}

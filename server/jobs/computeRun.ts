@@ -1,0 +1,91 @@
+/**
+ * What a run computes, wherever it runs (a worker thread today): the scenario is checked again, run
+ * with runScenario, and turned into the result files the server stores: summary.json, receptors.csv,
+ * footprint.geojson, the wind rose when there is one, and the ground field as binary for the map.
+ */
+import { parseScenario } from '../../scenarios/format/schema.ts';
+import type { SolverMode } from '../../scenarios/format/types.ts';
+import { runScenario, ScenarioInputError } from '../../solver/drivers/runScenario.ts';
+import { UnavailableError } from '../../solver/drivers/solveSteady.ts';
+import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
+import type { RunControl } from '../../solver/drivers/types.ts';
+import { checkScenarioGeometry } from '../scenarioFiles/semantics.ts';
+import type { ResultFileContent } from '../storage/resultFiles.ts';
+import type { RunError } from '../storage/runStore.ts';
+import { encodeGroundField, GROUND_FIELD_CONTENT_TYPE, GROUND_FIELD_FILE } from '../writers/groundField.ts';
+import { buildResultFiles, FOOTPRINT_FILE, RECEPTORS_FILE, SUMMARY_FILE, WIND_ROSE_FILE } from '../writers/writeResultFolder.ts';
+import type { RunJob } from './runExecutor.ts';
+
+/** Content types of the result files. */
+export const RESULT_CONTENT_TYPES: Record<string, string> = {
+  [SUMMARY_FILE]: 'application/json; charset=utf-8',
+  [RECEPTORS_FILE]: 'text/csv; charset=utf-8',
+  [FOOTPRINT_FILE]: 'application/geo+json; charset=utf-8',
+  [WIND_ROSE_FILE]: 'image/svg+xml; charset=utf-8',
+  [GROUND_FIELD_FILE]: GROUND_FIELD_CONTENT_TYPE,
+};
+
+/** A run that cannot go ahead as asked, in the API's error shape. */
+export class RunInputError extends Error {
+  override name = 'RunInputError';
+  constructor(readonly detail: RunError) {
+    super(detail.error);
+  }
+}
+
+/**
+ * Compute one run.
+ * @param job the job (kind, stored scenario, options)
+ * @param control progress and cancellation
+ * @returns the result files
+ * @throws RunInputError when the scenario or the options cannot be run
+ */
+export async function computeRun(job: RunJob, control: RunControl = {}): Promise<ResultFileContent[]> {
+  switch (job.kind) {
+    case 'scenario':
+      return computeScenarioRun(job, control);
+    default:
+      throw new RunInputError({ error: `kind: ${JSON.stringify(job.kind)} is not a kind of run`, field: 'kind', value: job.kind });
+  }
+}
+
+async function computeScenarioRun(job: RunJob, control: RunControl): Promise<ResultFileContent[]> {
+  const parsed = parseScenario(job.scenario);
+  if (!parsed.ok) {
+    const [first] = parsed.issues;
+    throw new RunInputError({ error: `scenario.${first.path}: ${first.message}`, field: `scenario.${first.path}`, allowed: first.message });
+  }
+  const scenario = parsed.scenario;
+  const geometryIssues = checkScenarioGeometry(scenario);
+  if (geometryIssues.length > 0) {
+    const [first] = geometryIssues;
+    throw new RunInputError({ error: `scenario.${first.path}: ${first.message}`, field: `scenario.${first.path}`, allowed: first.message });
+  }
+  const mode = job.options.mode as SolverMode | undefined;
+  let result;
+  try {
+    result = await runScenario(scenario, { mode, control });
+  } catch (error) {
+    if (error instanceof ScenarioInputError) throw new RunInputError(inputErrorDetail(error.message));
+    if (error instanceof UnavailableError) {
+      throw new RunInputError({ error: error.message, field: 'mode', value: mode ?? scenario.solver.mode, allowed: error.alternativeMode ?? undefined });
+    }
+    throw error;
+  }
+  control.onProgress?.(1, 'writing the results');
+  const built = buildResultFiles(scenario, result);
+  const encoder = new TextEncoder();
+  const files: ResultFileContent[] = built.contents.map(([name, text]) => ({
+    name,
+    contentType: RESULT_CONTENT_TYPES[name] ?? 'application/octet-stream',
+    content: encoder.encode(text),
+  }));
+  files.push({ name: GROUND_FIELD_FILE, contentType: GROUND_FIELD_CONTENT_TYPE, content: encodeGroundField(scenario, result, GROUND_LEVEL_HEIGHT_m) });
+  return files;
+}
+
+/** The solver's input messages start with the field path ("sources[1]: ..."): name it. */
+function inputErrorDetail(message: string): RunError {
+  const match = /^([A-Za-z_][\w]*(?:\[\d+\]|\.[A-Za-z_][\w]*)*):/.exec(message);
+  return { error: message, field: match === null ? 'scenario' : `scenario.${match[1]}` };
+}
