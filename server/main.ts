@@ -4,6 +4,8 @@
  * prints its URL. SIGTERM or SIGINT shuts it down gracefully: no new connections, running runs
  * stopped and marked interrupted, responses under way finished, the database closed.
  *
+ * `PLUMEPLAN_DEMOS=off` leaves an empty database empty.
+ *
  * Bound to anything but loopback it prints a warning, and with `PLUMEPLAN_TOKEN` set every /api
  * request must carry `Authorization: Bearer TOKEN`.
  */
@@ -42,7 +44,7 @@ async function start(): Promise<void> {
   if (services.interruptedAtStart.length > 0) {
     logger.warn({ runs: services.interruptedAtStart.length }, 'runs a restart had stopped were marked interrupted');
   }
-  const loaded = await loadDemoScenarios(services.scenarios);
+  const loaded = env.PLUMEPLAN_DEMOS === 'off' ? [] : await loadDemoScenarios(services.scenarios);
   if (loaded.length > 0) logger.info({ scenarios: loaded.length }, 'demo scenarios loaded into the empty database');
 
   const app = createApp({ ...services, token });
