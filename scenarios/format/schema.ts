@@ -319,11 +319,75 @@ function list<T extends z.ZodType>(item: T, itemDescription: string, minimum = 0
 // Site, domain, pollutant
 // ---------------------------------------------------------------------------------------------
 
+const positionSchema = z
+  .tuple([longitude('longitude'), latitude('latitude')], { error: 'must be a [lon, lat] pair of finite numbers' })
+  .describe('a GeoJSON position [lon, lat]');
+
+const POLYGON_ALLOWED = 'must be a closed GeoJSON ring of at least 4 [lon, lat] positions (first position = last)';
+
+/** Below this geodesic area a ring encloses nothing [m2] (floating-point slack for collinear points). */
+const POLYGON_MINIMUM_AREA_m2 = 1e-3;
+
+/**
+ * A closed GeoJSON ring: an area source's polygon or the site boundary.
+ * @param field the field's name, used in the messages ("polygon", "boundary")
+ * @param description what the ring is, for the JSON Schema
+ */
+function ringSchema(field: string, description: string) {
+  return z
+    .array(positionSchema, { error: POLYGON_ALLOWED })
+    .min(4, { error: POLYGON_ALLOWED })
+    .superRefine((ring, context) => {
+      const first = ring[0];
+      const last = ring[ring.length - 1];
+      if (first[0] !== last[0] || first[1] !== last[1]) {
+        context.addIssue({
+          code: 'custom',
+          path: [],
+          message: `${POLYGON_ALLOWED}; the ring is not closed: it starts at [${first}] and ends at [${last}]`,
+        });
+        return;
+      }
+      for (let index = 1; index < ring.length; index++) {
+        if (ring[index][0] === ring[index - 1][0] && ring[index][1] === ring[index - 1][1]) {
+          context.addIssue({
+            code: 'custom',
+            path: [index],
+            message: `must differ from the position before it (${field}[${index - 1}]); remove the repeated position`,
+          });
+          return;
+        }
+      }
+      const feature = turfPolygon([ring]);
+      const crossings = turfKinks(feature).features.map((point) => point.geometry.coordinates);
+      if (crossings.length > 0) {
+        const where = crossings
+          .slice(0, 3)
+          .map((position) => `[${position.map((value) => Number(value.toFixed(6))).join(', ')}]`)
+          .join(', ');
+        context.addIssue({
+          code: 'custom',
+          path: [],
+          message: `must not cross itself; its edges cross at ${where}${crossings.length > 3 ? ' and elsewhere' : ''}`,
+        });
+        return;
+      }
+      if (!(turfArea(feature) >= POLYGON_MINIMUM_AREA_m2)) {
+        context.addIssue({ code: 'custom', path: [], message: 'must enclose a non-zero area (its positions are collinear or repeated)' });
+      }
+    })
+    .describe(`${description}: GeoJSON [lon, lat] ring, closed (first = last), not crossing itself`);
+}
+
 const siteSchema = strictObject(
   {
     lat: latitude('origin of the local projected grid'),
     lon: longitude('origin of the local projected grid'),
     landUse: choice(['rural', 'urban'], 'selects wind-profile exponents and dispersion curves').default('rural'),
+    boundary: ringSchema(
+      'boundary',
+      'the site boundary (optional): peaks and footprint figures are reported off the site, where the public can be',
+    ).optional(),
   },
   'the site: origin of the local projected grid',
 );
@@ -590,59 +654,6 @@ const solverSchema = strictObject(
 // Sources and receptors
 // ---------------------------------------------------------------------------------------------
 
-const positionSchema = z
-  .tuple([longitude('longitude'), latitude('latitude')], { error: 'must be a [lon, lat] pair of finite numbers' })
-  .describe('a GeoJSON position [lon, lat]');
-
-const POLYGON_ALLOWED = 'must be a closed GeoJSON ring of at least 4 [lon, lat] positions (first position = last)';
-
-/** Below this geodesic area a ring encloses nothing [m2] (floating-point slack for collinear points). */
-const POLYGON_MINIMUM_AREA_m2 = 1e-3;
-
-const polygonSchema = z
-  .array(positionSchema, { error: POLYGON_ALLOWED })
-  .min(4, { error: POLYGON_ALLOWED })
-  .superRefine((ring, context) => {
-    const first = ring[0];
-    const last = ring[ring.length - 1];
-    if (first[0] !== last[0] || first[1] !== last[1]) {
-      context.addIssue({
-        code: 'custom',
-        path: [],
-        message: `${POLYGON_ALLOWED}; the ring is not closed: it starts at [${first}] and ends at [${last}]`,
-      });
-      return;
-    }
-    for (let index = 1; index < ring.length; index++) {
-      if (ring[index][0] === ring[index - 1][0] && ring[index][1] === ring[index - 1][1]) {
-        context.addIssue({
-          code: 'custom',
-          path: [index],
-          message: `must differ from the position before it (polygon[${index - 1}]); remove the repeated position`,
-        });
-        return;
-      }
-    }
-    const feature = turfPolygon([ring]);
-    const crossings = turfKinks(feature).features.map((point) => point.geometry.coordinates);
-    if (crossings.length > 0) {
-      const where = crossings
-        .slice(0, 3)
-        .map((position) => `[${position.map((value) => Number(value.toFixed(6))).join(', ')}]`)
-        .join(', ');
-      context.addIssue({
-        code: 'custom',
-        path: [],
-        message: `must not cross itself; its edges cross at ${where}${crossings.length > 3 ? ' and elsewhere' : ''}`,
-      });
-      return;
-    }
-    if (!(turfArea(feature) >= POLYGON_MINIMUM_AREA_m2)) {
-      context.addIssue({ code: 'custom', path: [], message: 'must enclose a non-zero area (its positions are collinear or repeated)' });
-    }
-  })
-  .describe('GeoJSON [lon, lat] ring, closed (first = last), not crossing itself');
-
 const pointSourceSchema = strictObject(
   {
     kind: z.literal('point'),
@@ -665,7 +676,7 @@ const areaSourceSchema = strictObject(
     kind: z.literal('area'),
     id: text('unique source id'),
     name: text('source name; absent = the id').optional(),
-    polygon: polygonSchema,
+    polygon: ringSchema('polygon', 'the area source'),
     releaseHeight_m: quantity({ atLeast: 0 }, 'm', 'release height above ground'),
     emission_g_s: quantity({ atLeast: 0 }, 'g/s', 'total emission rate of the polygon'),
   },

@@ -28,6 +28,11 @@ export interface Site {
   lon: number;
   /** "rural" (default) or "urban": selects wind-profile exponents and dispersion curves. */
   landUse: LandUse;
+  /**
+   * the site boundary, a GeoJSON [lon, lat] ring, closed; absent = not given. Peaks and footprint
+   * figures are reported off the site (where the public can be), the on-site ones kept and labelled.
+   */
+  boundary?: [number, number][];
 }
 
 export interface Domain {

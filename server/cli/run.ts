@@ -219,9 +219,18 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
       `grid ${result.grid.nx} x ${result.grid.ny} x ${result.grid.nz} at ${result.grid.spacing_m} m, ` +
       `${formatSeconds(result.wallSeconds)}`,
     `Results written to ${path.resolve(written.directory)}: ${written.files.join(', ')}`,
-    `Peak ground-level ${statistic}concentration: ${peak.concentration_ug_m3} ug/m3 at lat ${peak.lat}, lon ${peak.lon} ` +
-      `(${describeOffset(peak.x_m, peak.y_m)} of the site)`,
+    peak.onSite !== undefined || scenario.site.boundary !== undefined
+      ? `Peak ground-level ${statistic}concentration off the site: ${peak.concentration_ug_m3} ug/m3 at lat ${peak.lat}, ` +
+        `lon ${peak.lon} (${describeOffset(peak.x_m, peak.y_m)} of the site)`
+      : `Peak ground-level ${statistic}concentration: ${peak.concentration_ug_m3} ug/m3 at lat ${peak.lat}, lon ${peak.lon} ` +
+        `(${describeOffset(peak.x_m, peak.y_m)} of the site; no site boundary given, so it may be on the site itself)`,
   ];
+  if (peak.onSite !== undefined) {
+    lines.push(
+      `  on the site (not where the public is; for reference): ${peak.onSite.concentration_ug_m3} ug/m3 at ` +
+        `${describeOffset(peak.onSite.x_m, peak.onSite.y_m)} of the site`,
+    );
+  }
   if (summary.receptors.length > 0) {
     lines.push('Receptors:', ...receptorTable(summary.receptors, result.receptorColumns.map((column) => column.key)));
   }

@@ -18,6 +18,7 @@ import { contours } from 'd3-contour';
 import { difference, featureCollection, multiPolygon } from '@turf/turf';
 import type { Feature, MultiPolygon, Polygon, Position } from 'geojson';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
+import { sitePeak, type SiteColumns } from '../../solver/grid/siteBoundary.ts';
 import type { LocalGrid } from '../../solver/grid/types.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import { LON_LAT_DECIMALS, roundDecimals, roundSignificant } from './rounding.ts';
@@ -52,8 +53,12 @@ export interface FootprintCollectionProperties {
   levels_ug_m3: number[];
   /** how the levels were chosen */
   levelsChosen: 'default' | 'given';
-  /** ground-level maximum of the field, rounded [ug/m3] */
+  /** ground-level maximum of the field off the site (or anywhere, without a boundary), rounded [ug/m3] */
   peak_ug_m3: number;
+  /** where peak_ug_m3 was looked for: off the site, or anywhere (then it may be on the site) */
+  peakWhere: string;
+  /** the maximum on the site, rounded [ug/m3]; only when the scenario gives site.boundary */
+  peakOnSite_ug_m3?: number;
   topBand: string;
 }
 
@@ -72,6 +77,8 @@ export interface FootprintOptions {
   statistic?: 'concentration' | 'mean';
   /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_m (1.5) */
   height_m?: number;
+  /** the site boundary's columns: the peak is reported off the site; default none */
+  site?: SiteColumns | null;
 }
 
 /**
@@ -188,6 +195,7 @@ export function footprintBands(
     });
   });
 
+  const peak = sitePeak(grid, field_ug_m3, options.site ?? null);
   return {
     type: 'FeatureCollection',
     properties: {
@@ -198,7 +206,9 @@ export function footprintBands(
       height_m: options.height_m ?? GROUND_LEVEL_HEIGHT_m,
       levels_ug_m3: [...levels],
       levelsChosen,
-      peak_ug_m3: roundSignificant(fieldRange(field_ug_m3).peak, 3),
+      peak_ug_m3: roundSignificant(peak.value_ug_m3, 3),
+      peakWhere: peak.where,
+      ...(peak.onSite !== undefined ? { peakOnSite_ug_m3: roundSignificant(peak.onSite.value_ug_m3, 3) } : {}),
       topBand: 'open-ended: the top band holds every value at or above its lower level, so its upper_ug_m3 is null',
     },
     features,

@@ -10,6 +10,7 @@
 import { RESULT_FORMAT, type Scenario, type SolverMode } from '../../scenarios/format/types.ts';
 import type { MassBudget, ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
+import { sitePeak, type GroundPeak } from '../../solver/grid/siteBoundary.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import {
   CONCENTRATION_SIGNIFICANT_FIGURES,
@@ -45,6 +46,10 @@ export interface SummaryPeak {
   y_m: number;
   /** what the field is: a steady concentration or a period mean */
   statistic: 'concentration' | 'mean';
+  /** where the peak was looked for: off the site (a boundary was given) or anywhere (it may be on the site) */
+  where: string;
+  /** the maximum on the site, labelled, when the scenario gives site.boundary */
+  onSite?: Omit<SummaryPeak, 'statistic' | 'where' | 'onSite'> & { label: string };
 }
 
 export interface SummaryReceptor {
@@ -176,24 +181,29 @@ export function roundFigure(key: string, value: number): number {
   return key.endsWith('_ug_m3') ? roundSignificant(value, CONCENTRATION_SIGNIFICANT_FIGURES) : value;
 }
 
-/** Ground-level maximum of the footprint field, at the centre of its cell. */
-export function findPeak(result: Pick<ScenarioRunResult, 'grid' | 'footprint_ug_m3' | 'footprintStatistic'>): SummaryPeak {
-  const { grid, footprint_ug_m3: field } = result;
-  let best = 0;
-  for (let index = 1; index < field.length; index += 1) if (field[index] > field[best]) best = index;
-  const i = best % grid.nx;
-  const j = Math.floor(best / grid.nx);
-  const x_m = grid.xWest_m + (i + 0.5) * grid.spacing_m;
-  const y_m = grid.ySouth_m + (j + 0.5) * grid.spacing_m;
-  const [lon, lat] = grid.projection.toLonLat(x_m, y_m);
-  return {
-    concentration_ug_m3: roundSignificant(field.length === 0 ? 0 : field[best], CONCENTRATION_SIGNIFICANT_FIGURES),
-    lat: roundDecimals(lat, LON_LAT_DECIMALS),
-    lon: roundDecimals(lon, LON_LAT_DECIMALS),
-    x_m: roundDecimals(x_m, 1),
-    y_m: roundDecimals(y_m, 1),
-    statistic: result.footprintStatistic,
+/**
+ * Ground-level maximum of the footprint field, at the centre of its cell: off the site when the run
+ * carries the site boundary's columns (the on-site maximum kept as `onSite`, labelled), else anywhere,
+ * with `where` saying which.
+ */
+export function findPeak(
+  result: Pick<ScenarioRunResult, 'grid' | 'footprint_ug_m3' | 'footprintStatistic' | 'site'>,
+): SummaryPeak {
+  const { grid } = result;
+  const found = sitePeak(grid, result.footprint_ug_m3, result.site ?? null);
+  const place = (peak: GroundPeak) => {
+    const [lon, lat] = grid.projection.toLonLat(peak.x_m, peak.y_m);
+    return {
+      concentration_ug_m3: roundSignificant(peak.value_ug_m3, CONCENTRATION_SIGNIFICANT_FIGURES),
+      lat: roundDecimals(lat, LON_LAT_DECIMALS),
+      lon: roundDecimals(lon, LON_LAT_DECIMALS),
+      x_m: roundDecimals(peak.x_m, 1),
+      y_m: roundDecimals(peak.y_m, 1),
+    };
   };
+  const summaryPeak: SummaryPeak = { ...place(found), statistic: result.footprintStatistic, where: found.where };
+  if (found.onSite !== undefined) summaryPeak.onSite = { ...place(found.onSite), label: found.onSite.label };
+  return summaryPeak;
 }
 
 function roundBudget(budget: MassBudget): MassBudget {

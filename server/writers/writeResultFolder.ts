@@ -89,6 +89,7 @@ export function buildResultFiles(scenario: Scenario, result: ScenarioRunResult, 
     scenarioName: scenario.name,
     statistic: result.footprintStatistic,
     height_m: groundLevelHeight_m,
+    site: result.site ?? null,
   });
   const summary = buildSummary(scenario, result, {
     levels_ug_m3: footprint.properties.levels_ug_m3,

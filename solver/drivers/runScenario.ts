@@ -56,7 +56,8 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
   // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
   try {
-    return await dispatchByWeather(scenario, geometry, mode, control, options);
+    const result = await dispatchByWeather(scenario, geometry, mode, control, options);
+    return { ...result, site: geometry.site };
   } catch (error) {
     if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
     throw error;
@@ -204,6 +205,7 @@ export function seriesBaseInput(scenario: Scenario, geometry: ScenarioGeometry):
     landUse: scenario.site.landUse,
     windProfile: scenario.windProfile,
     groundLevelHeight_m: GROUND_LEVEL_HEIGHT_m,
+    site: geometry.site,
   };
 }
 
@@ -213,7 +215,8 @@ export function steadyInput(
   geometry: ScenarioGeometry,
   weather: SteadyRunInput['weather'],
 ): SteadyRunInput {
-  return { ...seriesBaseInput(scenario, geometry), weather };
+  const { site: _siteForPeaks, ...base } = seriesBaseInput(scenario, geometry);
+  return { ...base, weather };
 }
 
 /** RangeErrors from geometry and weather name a field of the scenario: they are input errors. */

@@ -13,9 +13,14 @@
 import type { Assessment, SolverMode } from '../../scenarios/format/types.ts';
 import { releaseHeights_m } from './gridSteady.ts';
 import { createSeriesSteadySolver, type SteadySolver } from './solveSteady.ts';
+import type { SiteColumns } from '../grid/siteBoundary.ts';
 import type { MassBudget, ResolvedWeather, RunControl, SourceReport, SteadyFieldResult, SteadyRunInput } from './types.ts';
 
-export type SeriesBaseInput = Omit<SteadyRunInput, 'weather'>;
+/**
+ * Everything a steady solve needs except the weather, and the site's columns for the peaks the series
+ * reports (not handed to the solves: they do not need it).
+ */
+export type SeriesBaseInput = Omit<SteadyRunInput, 'weather'> & { site?: SiteColumns | null };
 
 /** Options shared by hourly series and wind roses. */
 export interface SeriesRunOptions {
@@ -195,6 +200,7 @@ export async function solveWithReuse(
     else runs.push([index]);
   }
   const innerControl: RunControl = control.signal ? { signal: control.signal } : {};
+  const { site: _siteForPeaks, ...solveBase } = base;
   const lanes = Math.min(solvers !== null ? solvers.length : Math.max(1, Math.floor(options.concurrency ?? 1)), runs.length);
   let nextRun = 0;
   let done = 0;
@@ -205,7 +211,7 @@ export async function solveWithReuse(
       for (const index of run) {
         control.signal?.throwIfAborted();
         const weather = stateOfSolve(index);
-        const result = await solve({ ...base, weather }, mode, innerControl);
+        const result = await solve({ ...solveBase, weather }, mode, innerControl);
         checkShapes(base, result);
         solves[index] = storeSolve(result, weather.windSpeed_m_s);
         done++;

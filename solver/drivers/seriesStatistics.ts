@@ -5,6 +5,7 @@
  */
 import type { Assessment, AirQualityStandard } from '../../scenarios/format/types.ts';
 import { averagingPlan, standardColumnKey, standardExceedanceKey, standardFigures, type AveragingPlan } from '../diagnostics/statistics.ts';
+import { sitePeak, type SitePeak } from '../grid/siteBoundary.ts';
 import type { ReceptorColumn } from './types.ts';
 import type { SeriesBaseInput, SeriesFields } from './seriesSolves.ts';
 
@@ -143,18 +144,12 @@ export function seriesReceptorColumns(
   return columns;
 }
 
-/** Peak of a ground field: value and position of the column centre [m]. */
-export function groundPeak(base: SeriesBaseInput, field: ArrayLike<number>): { value_ug_m3: number; x_m: number; y_m: number } {
-  let best = 0;
-  for (let c = 1; c < field.length; c++) if (field[c] > field[best]) best = c;
-  const { grid } = base;
-  const i = best % grid.nx;
-  const j = (best - i) / grid.nx;
-  return {
-    value_ug_m3: field[best],
-    x_m: grid.xWest_m + (i + 0.5) * grid.spacing_m,
-    y_m: grid.ySouth_m + (j + 0.5) * grid.spacing_m,
-  };
+/**
+ * Peak of a ground field: value and position of the column centre [m], off the site when the scenario
+ * gives a site boundary (the on-site maximum kept beside it, labelled), and where it was looked for.
+ */
+export function groundPeak(base: SeriesBaseInput, field: ArrayLike<number>): SitePeak {
+  return sitePeak(base.grid, field, base.site ?? null);
 }
 
 /** The standards' part of summary.json for a series (or a wind rose). */

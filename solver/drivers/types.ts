@@ -12,6 +12,7 @@ import type {
   WindProfile,
 } from '../../scenarios/format/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
+import type { SiteColumns } from '../grid/siteBoundary.ts';
 import type { WindRoseTable } from '../meteorology/windRoseTable.ts';
 
 /** Weather of one steady period with every field resolved (stability derived, calms applied). */
@@ -168,6 +169,11 @@ export interface ScenarioRunResult {
   notes: string[];
   /** extra summary.json entries (weather statistics, standards, stability frequencies), JSON-ready */
   extraSummary: Record<string, unknown>;
+  /**
+   * the site boundary's ground columns: peaks are reported off the site; null or absent when the
+   * scenario gives no site.boundary (the output then says the peak may be on the site)
+   */
+  site?: SiteColumns | null;
   /** the weather's wind rose (series and rose runs) and a caption for it; the writers draw the picture */
   windRose?: { table: WindRoseTable; caption: string };
 }

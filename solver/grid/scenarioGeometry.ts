@@ -8,6 +8,7 @@ import { placeReceptors, placeSources } from '../sources/placement.ts';
 import { checkGridMemory, deriveDomain } from './domainDefaults.ts';
 import { buildLocalGrid } from './localGrid.ts';
 import { createLocalProjection } from './projection.ts';
+import { placeSiteBoundary, siteColumns, type SiteColumns } from './siteBoundary.ts';
 import type { LocalGrid, LocalProjection } from './types.ts';
 
 export interface ScenarioGeometry {
@@ -19,6 +20,8 @@ export interface ScenarioGeometry {
   grid: LocalGrid;
   sources: PlacedSource[];
   receptors: PlacedReceptor[];
+  /** the site boundary's columns; null when the scenario gives no site.boundary */
+  site: SiteColumns | null;
 }
 
 /**
@@ -45,5 +48,6 @@ export function prepareScenarioGeometry(scenario: Scenario): ScenarioGeometry {
     grid,
     sources: placeSources(scenario.sources, grid),
     receptors: placeReceptors(scenario.receptors, grid),
+    site: scenario.site.boundary === undefined ? null : siteColumns(grid, placeSiteBoundary(scenario.site.boundary, projection)),
   };
 }

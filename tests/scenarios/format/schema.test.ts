@@ -304,9 +304,32 @@ describe('issues name the field, the value and what is allowed', () => {
 
   it('says which fields an object needs when it is not an object at all', () => {
     expect(formatIssues(issuesOf({ ...minimal(), site: 'Tarnwick' }))).toBe(
-      'site: got "Tarnwick"; must be an object with the fields lat, lon, landUse? (? = optional)',
+      'site: got "Tarnwick"; must be an object with the fields lat, lon, landUse?, boundary? (? = optional)',
     );
     expect(issuesOf(null)[0].path).toBe('(scenario)');
+  });
+});
+
+describe('site boundary', () => {
+  const withBoundary = (boundary: unknown): ScenarioIssue[] => {
+    const raw = minimal();
+    raw.site.boundary = boundary;
+    const outcome = parseScenario(raw);
+    return outcome.ok ? [] : outcome.issues;
+  };
+  const square = [[5.0, 52.0], [5.004, 52.0], [5.004, 52.002], [5.0, 52.002], [5.0, 52.0]];
+
+  it('is optional, and a closed simple ring is accepted', () => {
+    expect(withBoundary(undefined)).toEqual([]);
+    expect(withBoundary(square)).toEqual([]);
+  });
+
+  it('is checked as a ring, with its own field path', () => {
+    expect(withBoundary(square.slice(0, 4))[0]).toMatchObject({ path: 'site.boundary', message: expect.stringContaining('not closed') });
+    const repeated = [square[0], square[1], square[1], square[2], square[3], square[0]];
+    expect(withBoundary(repeated)[0]).toMatchObject({ path: 'site.boundary[2]', message: expect.stringContaining('boundary[1]') });
+    const bowTie = [[5.0, 52.0], [5.004, 52.002], [5.004, 52.0], [5.0, 52.002], [5.0, 52.0]];
+    expect(withBoundary(bowTie)[0]).toMatchObject({ path: 'site.boundary', message: expect.stringContaining('cross') });
   });
 });
 

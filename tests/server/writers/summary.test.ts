@@ -6,6 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { SCREENING_CAUTION } from '../../../server/writers/caution.ts';
 import { buildSummary } from '../../../server/writers/summary.ts';
 import { makeTestGrid, makeTestRunResult, makeTestScenario } from './helpers.ts';
+import { siteColumns } from '../../../solver/grid/siteBoundary.ts';
 
 const scenario = makeTestScenario();
 const grid = makeTestGrid({ site: scenario.site, nx: 10, ny: 10, spacing_m: 100, xWest_m: -500, ySouth_m: -500 });
@@ -60,7 +61,23 @@ describe('summary.json', () => {
       x_m: 250,
       y_m: -50,
       statistic: 'concentration',
+      where: 'anywhere on the grid: no site boundary was given, so this peak may be on the site itself',
     });
+  });
+
+  it('with a site boundary the peak is the largest off the site; the on-site maximum is kept and labelled', () => {
+    const result = makeTestRunResult(grid);
+    // Put the maximum's cell (7, 4) on the site: a square ring about its centre (250, -50).
+    const ring_m: [number, number][] = [[200, -100], [300, -100], [300, 0], [200, 0], [200, -100]];
+    const summary = buildSummary(scenario, { ...result, site: siteColumns(grid, ring_m) });
+    let offSite = 0;
+    result.footprint_ug_m3.forEach((value, column) => {
+      if (column !== 7 + grid.nx * 4) offSite = Math.max(offSite, value);
+    });
+    expect(summary.peak.concentration_ug_m3).toBe(Number(offSite.toPrecision(3)));
+    expect(summary.peak.where).toBe('off the site (outside site.boundary)');
+    expect(summary.peak.onSite).toMatchObject({ concentration_ug_m3: 12.3, x_m: 250, y_m: -50 });
+    expect(summary.peak.onSite?.label).toMatch(/^on the site/);
   });
 
   it('receptors carry their position in local metres and their figures rounded to 3 significant figures', () => {
