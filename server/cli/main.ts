@@ -1,21 +1,24 @@
 /**
- * The `plumeplan` command line: dispatches to `run` and `validate`, answers `--help` and `--version`.
+ * The `plumeplan` command line: dispatches to `run`, `site` and `validate`, answers `--help` and `--version`.
  * `bin/plumeplan.mjs` calls `main` and sets the process exit code from its result.
  */
 import { readFileSync } from 'node:fs';
 import { processIO, type CommandIO } from './io.ts';
 import { runCommand, type RunCommandOptions } from './run.ts';
+import { siteCommand } from './site.ts';
 import { validateCommand } from './validate.ts';
 
 export const MAIN_USAGE = `plumeplan: screening of planned emission sources (screening estimates only)
 
 usage:
   plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+  plumeplan site SCENARIO --out DIR [--candidates FILE] [--site-polygon FILE] [options]
   plumeplan validate FILE [FILE...]
   plumeplan --help | --version
 
 commands:
   run        run a scenario; write summary.json, receptors.csv and footprint.geojson into DIR
+  site       map where on the site the stack least affects the receptors; rank candidate positions
   validate   check scenario files without running them
 
 Run "plumeplan COMMAND --help" for a command's options.
@@ -55,6 +58,8 @@ export async function main(argv: string[], io: CommandIO = processIO(), options:
         return 0;
       case 'run':
         return await runCommand(rest, io, options);
+      case 'site':
+        return await siteCommand(rest, io, { solve: options.solve });
       case 'validate':
         return await validateCommand(rest, {
           stdout: (text) => io.stdout.write(text),

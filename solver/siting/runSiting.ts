@@ -14,7 +14,7 @@ import type { LocalGrid } from '../grid/types.ts';
 import { isInsideGrid } from '../grid/localGrid.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { partOfProgress } from './adjointSolve.ts';
-import { columnsInsideRing, latticeInsideRing, lowestColumn } from './candidates.ts';
+import { columnsInsideRing, insideRing, latticeInsideRing, lowestColumn } from './candidates.ts';
 import { chooseStandard, screenPc, type ScreeningVerdict } from './screening.ts';
 import { gaussianSitingMap, gridSitingMap, SITING_LIMITS, type PcAt, type ReceptorCombination, type SitingMap, type WeightedWeather } from './sitingMap.ts';
 
@@ -92,6 +92,8 @@ export interface BestPosition {
   receptorPc_ug_m3: number[];
   /** where it was sought: "site polygon" or "whole domain" */
   within: 'site polygon' | 'whole domain';
+  /** "map" (a column centre) or "candidate <id>" (a candidate inside the site that is lower still) */
+  from: string;
 }
 
 export interface SitingResult {
@@ -203,21 +205,6 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   const polygonField = options.sitePolygon !== undefined ? 'site polygon' : 'site.boundary';
   const siteRing_m = polygon === undefined ? null : polygon.map(([lon, lat]) => projection.toLocal(lon, lat));
   const siteMask = siteRing_m === null ? null : columnsInsideRing(grid, siteRing_m, polygonField);
-  const bestColumn = lowestColumn(map.combined_ug_m3, siteMask);
-  if (bestColumn < 0) throw new RangeError(`${polygonField}: no grid column centre lies inside it (grid spacing ${grid.spacing_m} m); draw a larger polygon or use a finer grid`);
-  const bestX = grid.xWest_m + ((bestColumn % grid.nx) + 0.5) * grid.spacing_m;
-  const bestY = grid.ySouth_m + (Math.floor(bestColumn / grid.nx) + 0.5) * grid.spacing_m;
-  const [bestLon, bestLat] = projection.toLonLat(bestX, bestY);
-  const best: BestPosition = {
-    x_m: bestX,
-    y_m: bestY,
-    lon: bestLon,
-    lat: bestLat,
-    combined_ug_m3: map.combined_ug_m3[bestColumn],
-    receptorPc_ug_m3: map.perReceptor_ug_m3.map((values) => values[bestColumn]),
-    within: siteMask === null ? 'whole domain' : 'site polygon',
-  };
-
   // The candidates: the list, then the polygon's lattice.
   const spacing_m = options.spacing_m ?? grid.spacing_m;
   const positions: { id: string; origin: RankedCandidate['origin']; x_m: number; y_m: number }[] = [];
@@ -242,6 +229,28 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
     ids.add(id);
   }
   const candidates = rankCandidates(positions, receptors, map, pcAt, standard, projection.toLonLat);
+
+  // The best position: the lowest column centre inside the site (or anywhere without one), unless a
+  // candidate inside the site (a lattice point on its edge, say) is lower still.
+  const bestColumn = lowestColumn(map.combined_ug_m3, siteMask);
+  if (bestColumn < 0) throw new RangeError(`${polygonField}: no grid column centre lies inside it (grid spacing ${grid.spacing_m} m); draw a larger polygon or use a finer grid`);
+  const bestX = grid.xWest_m + ((bestColumn % grid.nx) + 0.5) * grid.spacing_m;
+  const bestY = grid.ySouth_m + (Math.floor(bestColumn / grid.nx) + 0.5) * grid.spacing_m;
+  const [bestLon, bestLat] = projection.toLonLat(bestX, bestY);
+  let best: BestPosition = {
+    x_m: bestX,
+    y_m: bestY,
+    lon: bestLon,
+    lat: bestLat,
+    combined_ug_m3: map.combined_ug_m3[bestColumn],
+    receptorPc_ug_m3: map.perReceptor_ug_m3.map((values) => values[bestColumn]),
+    within: siteMask === null ? 'whole domain' : 'site polygon',
+    from: 'map',
+  };
+  const bestCandidate = candidates.find((candidate) => siteRing_m === null || candidate.origin === 'sitePolygon' || insideRing(siteRing_m, candidate.x_m, candidate.y_m));
+  if (bestCandidate !== undefined && bestCandidate.combined_ug_m3 < best.combined_ug_m3) {
+    best = { ...best, x_m: bestCandidate.x_m, y_m: bestCandidate.y_m, lon: bestCandidate.lon, lat: bestCandidate.lat, combined_ug_m3: bestCandidate.combined_ug_m3, receptorPc_ug_m3: [...bestCandidate.receptorPc_ug_m3], from: `candidate ${bestCandidate.id}` };
+  }
 
   // Forward runs of the best-ranked candidates: the ground peak, the area above the level, and a check
   // of the map against the forward receptors.

@@ -1,0 +1,223 @@
+/**
+ * The siting result's files: the ranked candidates (candidates.csv, machine-clean RFC 4180, and
+ * siting.json, the whole result with the caution and the limits), the map as a GeoTIFF (siting-map.tif)
+ * and as GeoJSON (siting.geojson: the map's isopleth bands, drawn by footprint.ts's contouring, the best
+ * position, the candidates, the receptors and the site polygon), and on request each forward-run
+ * candidate's ground-level footprint.
+ */
+import { mkdir, stat, writeFile } from 'node:fs/promises';
+import path from 'node:path';
+import type { Feature, Geometry } from 'geojson';
+import type { RankedCandidate, SitingResult } from '../../solver/siting/runSiting.ts';
+import { SCREENING_CAUTION } from './caution.ts';
+import { defaultFootprintLevels, footprintBands } from './footprint.ts';
+import { localGridGeoTiff, MAX_BANDS } from './localGeoTiff.ts';
+import { CONCENTRATION_SIGNIFICANT_FIGURES, LON_LAT_DECIMALS, roundDecimals, roundSignificant } from './rounding.ts';
+import { csvField } from './receptorsCsv.ts';
+import { formatFootprint } from './writeResultFolder.ts';
+
+export const SITING_JSON_FILE = 'siting.json';
+export const CANDIDATES_CSV_FILE = 'candidates.csv';
+export const SITING_MAP_FILE = 'siting-map.tif';
+export const SITING_GEOJSON_FILE = 'siting.geojson';
+export const SITING_FORMAT = 'plumeplan.siting/1';
+
+const LINE_END = '\r\n';
+const pc = (value: number): number => roundSignificant(value, CONCENTRATION_SIGNIFICANT_FIGURES);
+const degrees = (value: number): number => roundDecimals(value, LON_LAT_DECIMALS);
+const metres = (value: number): number => roundDecimals(value, 1);
+/** Percentages to two significant figures: what a person reads, no false precision. */
+const percent = (value: number): number => roundSignificant(value, 2);
+
+/** What a map value means, in words, for file headers and properties. */
+export function mapMeaning(result: SitingResult): string {
+  const what = result.statistic === 'mean' ? 'long-term mean PC' : 'PC in the one steady weather state';
+  return `${result.map.combination} ${what} [ug/m3] if the stack ${result.stack.id} stood at each grid column centre`;
+}
+
+/**
+ * candidates.csv: one row per candidate, best first. Columns: rank, id, origin, lon, lat, x_m, y_m, the
+ * combined value, the highest receptor PC and whose, each receptor's PC, % of the standard, the verdict,
+ * and from the forward run the ground peak and the area at or above the level (empty when not run).
+ */
+export function candidatesCsv(result: SitingResult): string {
+  const header = [
+    'rank', 'id', 'origin', 'lon', 'lat', 'x_m', 'y_m', 'combined_ug_m3', 'highest_pc_ug_m3', 'highest_receptor',
+    ...result.receptors.map((receptor) => `pc_${receptor.id}_ug_m3`),
+    'percent_of_standard', 'verdict', 'ground_peak_ug_m3', 'area_above_level_m2',
+  ];
+  const empty = (value: number | null, format: (v: number) => number): string => (value === null ? '' : String(format(value)));
+  const lines = [header.map(csvField).join(',')];
+  for (const candidate of result.candidates) {
+    lines.push(
+      [
+        String(candidate.rank), candidate.id, candidate.origin, String(degrees(candidate.lon)), String(degrees(candidate.lat)),
+        String(metres(candidate.x_m)), String(metres(candidate.y_m)), String(pc(candidate.combined_ug_m3)), String(pc(candidate.highestPc_ug_m3)),
+        candidate.highestReceptorId, ...candidate.receptorPc_ug_m3.map((value) => String(pc(value))),
+        empty(candidate.percentOfStandard, percent), candidate.verdict ?? '', empty(candidate.groundPeak_ug_m3, pc),
+        empty(candidate.areaAboveLevel_m2, (value) => roundSignificant(value, 2)),
+      ].map(csvField).join(','),
+    );
+  }
+  return lines.join(LINE_END) + LINE_END;
+}
+
+function candidateJson(candidate: RankedCandidate, result: SitingResult): Record<string, unknown> {
+  return {
+    rank: candidate.rank,
+    id: candidate.id,
+    origin: candidate.origin,
+    lon: degrees(candidate.lon),
+    lat: degrees(candidate.lat),
+    x_m: metres(candidate.x_m),
+    y_m: metres(candidate.y_m),
+    combined_ug_m3: pc(candidate.combined_ug_m3),
+    highestPc_ug_m3: pc(candidate.highestPc_ug_m3),
+    highestReceptor: candidate.highestReceptorId,
+    receptors: result.receptors.map((receptor, r) => ({
+      id: receptor.id,
+      pc_ug_m3: pc(candidate.receptorPc_ug_m3[r]),
+      forwardPc_ug_m3: candidate.forwardReceptorPc_ug_m3 === null ? null : pc(candidate.forwardReceptorPc_ug_m3[r]),
+    })),
+    percentOfStandard: candidate.percentOfStandard === null ? null : percent(candidate.percentOfStandard),
+    verdict: candidate.verdict,
+    groundPeak_ug_m3: candidate.groundPeak_ug_m3 === null ? null : pc(candidate.groundPeak_ug_m3),
+    areaAboveLevel_m2: candidate.areaAboveLevel_m2 === null ? null : roundSignificant(candidate.areaAboveLevel_m2, 2),
+  };
+}
+
+/** siting.json: the whole result, rounded, with the caution, the limits and the notes. */
+export function sitingJson(result: SitingResult, files: Record<string, string>): Record<string, unknown> {
+  const { map, grid } = result;
+  return {
+    format: SITING_FORMAT,
+    caution: SCREENING_CAUTION,
+    limits: result.limits,
+    scenario: result.scenarioName,
+    pollutant: result.pollutant,
+    mode: result.mode,
+    weatherKind: result.weatherKind,
+    statistic: result.statistic,
+    map: {
+      meaning: mapMeaning(result),
+      combination: map.combination,
+      units: 'ug/m3',
+      grid: { nx: grid.nx, ny: grid.ny, spacing_m: grid.spacing_m, xWest_m: grid.xWest_m, ySouth_m: grid.ySouth_m, projection: grid.projection.definition },
+      bands: [`1: ${map.combination}`, ...(map.receptorIds.length < MAX_BANDS ? map.receptorIds.map((id, r) => `${r + 2}: PC at ${id}`) : [])],
+      maskedToSite: result.siteMask !== null,
+      files,
+    },
+    stack: { ...result.stack, effectiveHeights_m: map.effectiveHeights_m.map((height) => roundDecimals(height, 1)) },
+    receptors: result.receptors.map((receptor) => ({ ...receptor, x_m: metres(receptor.x_m), y_m: metres(receptor.y_m) })),
+    standard: result.standard,
+    level_ug_m3: result.level_ug_m3,
+    best: {
+      ...result.best,
+      lon: degrees(result.best.lon),
+      lat: degrees(result.best.lat),
+      x_m: metres(result.best.x_m),
+      y_m: metres(result.best.y_m),
+      combined_ug_m3: pc(result.best.combined_ug_m3),
+      receptorPc_ug_m3: result.best.receptorPc_ug_m3.map(pc),
+    },
+    sitePolygonSpacing_m: result.sampleSpacing_m,
+    candidates: result.candidates.map((candidate) => candidateJson(candidate, result)),
+    agreement: {
+      forwardRuns: result.forwardRunCount,
+      largestDifferenceFractionOfPeak: result.forwardAgreement === null ? null : roundSignificant(result.forwardAgreement, 2),
+      meaning: 'largest |map - forward run| receptor PC over the forward-run candidates, as a fraction of the largest forward PC',
+    },
+    run: {
+      mapSeconds: roundSignificant(result.mapSeconds, 3),
+      adjointSolves: map.mode === 'grid' ? map.solves : 0,
+      sweeps: map.sweeps,
+      forwardSeconds: roundSignificant(result.forwardSeconds, 3),
+      wallSeconds: roundSignificant(result.wallSeconds, 3),
+    },
+    notes: result.notes,
+  };
+}
+
+function point(lonLat: [number, number], properties: Record<string, unknown>): Feature<Geometry, Record<string, unknown>> {
+  return { type: 'Feature', geometry: { type: 'Point', coordinates: [degrees(lonLat[0]), degrees(lonLat[1])] }, properties };
+}
+
+/**
+ * siting.geojson: RFC 7946 FeatureCollection in WGS 84 lon/lat. Features carry `kind`: "map band" (an
+ * isopleth band of the combined map, lower_ug_m3 included, upper_ug_m3 excluded or null at the top),
+ * "best position", "candidate" (rank, id, combined_ug_m3, verdict), "receptor" and "site polygon".
+ *
+ * @param levels_ug_m3 the bands' levels (default: round 1-2-5 levels across the map's range)
+ */
+export function sitingGeoJson(result: SitingResult, levels_ug_m3?: number[]): Record<string, unknown> {
+  const { grid } = result;
+  const levels = levels_ug_m3 ?? defaultFootprintLevels(result.map.combined_ug_m3);
+  const bands = footprintBands(result.map.combined_ug_m3, grid, { levels_ug_m3: levels, scenarioName: result.scenarioName, statistic: result.statistic });
+  const features: Feature<Geometry, Record<string, unknown>>[] = bands.features.map((band) => ({ ...band, properties: { kind: 'map band', ...band.properties } }));
+  const toLonLat = (x: number, y: number): [number, number] => grid.projection.toLonLat(x, y);
+  if (result.siteRing_m !== null) {
+    features.push({
+      type: 'Feature',
+      geometry: { type: 'Polygon', coordinates: [result.siteRing_m.map(([x, y]) => toLonLat(x, y).map(degrees))] },
+      properties: { kind: 'site polygon' },
+    });
+  }
+  for (const receptor of result.receptors) features.push(point(toLonLat(receptor.x_m, receptor.y_m), { kind: 'receptor', id: receptor.id, name: receptor.name }));
+  for (const candidate of result.candidates) {
+    features.push(point([candidate.lon, candidate.lat], { kind: 'candidate', rank: candidate.rank, id: candidate.id, combined_ug_m3: pc(candidate.combined_ug_m3), verdict: candidate.verdict }));
+  }
+  features.push(point([result.best.lon, result.best.lat], { kind: 'best position', within: result.best.within, combined_ug_m3: pc(result.best.combined_ug_m3) }));
+  return {
+    type: 'FeatureCollection',
+    properties: {
+      caution: SCREENING_CAUTION,
+      limits: result.limits,
+      scenario: result.scenarioName,
+      meaning: mapMeaning(result),
+      units: 'ug/m3',
+      levels_ug_m3: bands.properties.levels_ug_m3,
+    },
+    features,
+  };
+}
+
+export interface SitingFolderOptions {
+  /** the map bands' levels [ug/m3] */
+  levels_ug_m3?: number[];
+  /** site latitude and longitude (the local projection's origin) */
+  site: { lat: number; lon: number };
+}
+
+/**
+ * Write the siting folder: siting.json, candidates.csv, siting-map.tif, siting.geojson, and a
+ * footprint-<id>.geojson for each candidate that kept its ground-level field.
+ *
+ * @returns the file names written, in order
+ * @throws RangeError when the folder exists and is not a folder, or the levels are invalid
+ */
+export async function writeSitingFolder(directory: string, result: SitingResult, options: SitingFolderOptions): Promise<string[]> {
+  // Everything is built before the disk is touched, so a failure leaves no half-written folder.
+  const receptorBands = result.map.perReceptor_ug_m3.length < MAX_BANDS ? result.map.perReceptor_ug_m3 : [];
+  const description = `${SCREENING_CAUTION} Band 1: ${result.map.receptorWeights === null ? 'highest' : 'weighted'} PC [ug/m3], stack at each pixel. See siting.json.`;
+  const tiff = localGridGeoTiff(result.grid, [result.map.combined_ug_m3, ...receptorBands], { site: options.site, mask: result.siteMask, description });
+  const geojson = sitingGeoJson(result, options.levels_ug_m3);
+  const footprints: [string, string][] = [];
+  for (const candidate of result.candidates) {
+    if (candidate.groundLevel_ug_m3 === undefined) continue;
+    const collection = footprintBands(candidate.groundLevel_ug_m3, result.grid, { scenarioName: `${result.scenarioName}: stack at candidate ${candidate.id}`, statistic: result.statistic });
+    footprints.push([`footprint-${candidate.id.replace(/[^\w.-]/g, '_')}.geojson`, formatFootprint(collection)]);
+  }
+  const files: Record<string, string> = { geotiff: SITING_MAP_FILE, geojson: SITING_GEOJSON_FILE, candidates: CANDIDATES_CSV_FILE };
+  const texts: [string, string | Uint8Array][] = [
+    [SITING_JSON_FILE, `${JSON.stringify(sitingJson(result, files), null, 2)}\n`],
+    [CANDIDATES_CSV_FILE, candidatesCsv(result)],
+    [SITING_MAP_FILE, tiff],
+    [SITING_GEOJSON_FILE, `${JSON.stringify(geojson)}\n`],
+    ...footprints,
+  ];
+  const existing = await stat(directory).catch(() => null);
+  if (existing !== null && !existing.isDirectory()) throw new RangeError(`siting folder ${directory}: exists and is not a folder; give a folder to write the results into`);
+  await mkdir(directory, { recursive: true });
+  for (const [name, content] of texts) await writeFile(path.join(directory, name), content);
+  return texts.map(([name]) => name);
+}

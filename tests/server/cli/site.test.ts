@@ -1,0 +1,124 @@
+/**
+ * Behaviour checks of `plumeplan site`, in process: help, a grid-mode siting of a coarse demo with a
+ * candidate file and a site polygon (exit 0, the four files, what stdout says), and input errors (exit 2,
+ * the option or field named) and a capability not built (exit 1).
+ */
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import type { CommandIO } from '../../../server/cli/io.ts';
+import { main } from '../../../server/cli/main.ts';
+import { solveSteady } from '../../../solver/drivers/solveSteady.ts';
+
+const DEMO = path.join(import.meta.dirname, '..', '..', '..', 'scenarios', 'merrowdene-heat-plant', 'scenario.json');
+const scratch = mkdtempSync(path.join(tmpdir(), 'plumeplan-site-'));
+afterAll(() => rmSync(scratch, { recursive: true, force: true }));
+
+function capture(): { io: CommandIO; stdout: () => string; stderr: () => string } {
+  const out: string[] = [];
+  const err: string[] = [];
+  let time_ms = 0;
+  return {
+    io: { stdout: { write: (text: string) => out.push(text) }, stderr: { write: (text: string) => err.push(text), isTTY: false }, env: {}, now: () => (time_ms += 400) },
+    stdout: () => out.join(''),
+    stderr: () => err.join(''),
+  };
+}
+
+function file(name: string, content: unknown): string {
+  const where = path.join(scratch, name);
+  writeFileSync(where, typeof content === 'string' ? content : JSON.stringify(content));
+  return where;
+}
+
+/** The demo on a coarse grid (30 x 30 x 10 at 200 m): quick in grid mode. */
+function coarseDemo(change: (scenario: Record<string, any>) => void = () => {}): string {
+  const scenario = JSON.parse(readFileSync(DEMO, 'utf8'));
+  delete scenario.$schema;
+  scenario.domain = { halfWidth_m: 3000, spacing_m: 200, height_m: 1000, layers: 10 };
+  change(scenario);
+  return file(`scenario-${Math.random().toString(36).slice(2)}.json`, scenario);
+}
+
+const candidates = file('candidates.geojson', {
+  type: 'FeatureCollection',
+  features: [
+    { type: 'Feature', id: 'yard-north', geometry: { type: 'Point', coordinates: [-2.2841, 54.063] }, properties: {} },
+    { type: 'Feature', geometry: { type: 'Point', coordinates: [-2.29, 54.06] }, properties: { id: 'west-field' } },
+  ],
+});
+const sitePolygon = file('site.geojson', {
+  type: 'Feature',
+  properties: {},
+  geometry: { type: 'Polygon', coordinates: [[[-2.292, 54.058], [-2.278, 54.058], [-2.278, 54.065], [-2.292, 54.065], [-2.292, 54.058]]] },
+});
+const inProcess = { solve: solveSteady };
+
+describe('plumeplan site', () => {
+  it('--help prints the usage and exits 0; the top-level help names the command', async () => {
+    const run = capture();
+    expect(await main(['site', '--help'], run.io, inProcess)).toBe(0);
+    expect(run.stdout()).toContain('usage: plumeplan site SCENARIO --out DIR');
+    const top = capture();
+    expect(await main(['--help'], top.io)).toBe(0);
+    expect(top.stdout()).toContain('plumeplan site SCENARIO');
+  });
+
+  it('sites the demo stack in grid mode: the four files, the best position, the candidates, the limits and the caution', async () => {
+    const run = capture();
+    const out = path.join(scratch, 'out-grid');
+    const code = await main(['site', coarseDemo(), '--out', out, '--candidates', candidates, '--site-polygon', sitePolygon, '--spacing', '400', '--forward-runs', '3'], run.io, inProcess);
+    expect(run.stderr()).not.toMatch(/invalid|failure/);
+    expect(code).toBe(0);
+    for (const name of ['siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson']) expect(existsSync(path.join(out, name)), name).toBe(true);
+    const text = run.stdout();
+    expect(text).toMatch(/grid mode, 3 adjoint solves/);
+    expect(text).toMatch(/Best position \(site polygon/);
+    expect(text).toMatch(/yard-north|west-field/);
+    expect(text).toMatch(/Check: forward runs at 3 candidates agree with the map within [\d.]+ % of the largest PC/);
+    expect(text).toMatch(/Holds only for: flat terrain/);
+    expect(text).toMatch(/Caution: Screening estimate only/);
+    const json = JSON.parse(readFileSync(path.join(out, 'siting.json'), 'utf8'));
+    expect(json.candidates.some((candidate: { id: string }) => candidate.id === 'yard-north')).toBe(true);
+    expect(json.agreement.forwardRuns).toBe(3);
+    expect(json.agreement.largestDifferenceFractionOfPeak).toBeLessThan(0.1);
+  });
+
+  it.each([
+    [['site'], /site needs a SCENARIO file/],
+    [['site', DEMO], /--out DIR is required/],
+    [['site', DEMO, '--out', scratch, '--spacing=-5'], /--spacing: "-5" is not allowed/],
+    [['site', DEMO, '--out', scratch, '--weights', '1,x'], /--weights: entry 2 \("x"\)/],
+  ])('%j is a usage error: exit 2 with the message', async (argv, message) => {
+    const run = capture();
+    expect(await main(argv, run.io, inProcess)).toBe(2);
+    expect(run.stderr()).toMatch(message);
+  });
+
+  it('a candidates file that is not points, a missing file, an unknown stack and a bad site polygon exit 2, each named', async () => {
+    const notPoints = file('lines.geojson', { type: 'FeatureCollection', features: [{ type: 'Feature', geometry: { type: 'LineString', coordinates: [[0, 0], [1, 1]] }, properties: {} }] });
+    const cases: [string[], RegExp][] = [
+      [['--candidates', notPoints], /--candidates: feature 1 is not a Point/],
+      [['--candidates', path.join(scratch, 'missing.json')], /--candidates: cannot read .*missing\.json \(ENOENT\)/],
+      [['--stack', 'chimney'], /invalid input: stack "chimney" is not a point source of the scenario; allowed: "boiler-stack"/],
+      [['--site-polygon', file('tiny.geojson', { type: 'Polygon', coordinates: [[[-2.2841, 54.0612], [-2.28409, 54.0612], [-2.28409, 54.06121], [-2.2841, 54.0612]]] })], /site polygon: no point of a 200 m lattice falls inside it; use a smaller spacing/],
+    ];
+    for (const [extra, message] of cases) {
+      const run = capture();
+      expect(await main(['site', coarseDemo(), '--out', path.join(scratch, 'bad'), '--mode', 'gaussian', ...extra], run.io, inProcess), extra.join(' ')).toBe(2);
+      expect(run.stderr(), run.stderr()).toMatch(message);
+    }
+    expect(existsSync(path.join(scratch, 'bad'))).toBe(false);
+  });
+
+  it('an hourly series is not mapped yet: exit 1, saying what to use instead', async () => {
+    const run = capture();
+    const hourly = coarseDemo((scenario) => {
+      const { kind: _kind, ...fields } = scenario.weather;
+      scenario.weather = { kind: 'hourly', hours: [{ ...fields, time: '2026-01-05T10:00:00Z' }] };
+    });
+    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian'], run.io, inProcess)).toBe(1);
+    expect(run.stderr()).toMatch(/hourly series is not built yet: give the weather as a wind rose/);
+  });
+});
