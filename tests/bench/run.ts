@@ -28,6 +28,7 @@ import { SlabPoolExecutor } from '../../solver/parallel/slabPool.ts';
 import { advanceOneStep, SerialStepExecutor, type StepExecutor } from '../../solver/timestepping/timeStepper.ts';
 import { uniformColumnWind } from '../../solver/wind/columnWind.ts';
 import { testGrid } from '../solver/verification/testGrid.ts';
+import { sitingBenchmarks } from './siting.ts';
 
 /** Main-memory bytes a transport step moves per cell: read + write in the pass up, read + write in the pass down. */
 const KERNEL_BYTES_PER_CELL_STEP = 32;
@@ -168,8 +169,8 @@ async function steadyByTimeMarch(input: SteadyRunInput, steady: SteadyFieldResul
   };
 }
 
-/** Sections to run: PLUMEPLAN_BENCH_SECTIONS=transport,bandwidth,steady (default all). */
-const SECTIONS = new Set((process.env.PLUMEPLAN_BENCH_SECTIONS ?? 'transport,bandwidth,steady').split(','));
+/** Sections to run: PLUMEPLAN_BENCH_SECTIONS=transport,bandwidth,steady,siting (default all). */
+const SECTIONS = new Set((process.env.PLUMEPLAN_BENCH_SECTIONS ?? 'transport,bandwidth,steady,siting').split(','));
 
 async function main(): Promise<void> {
   const figures = new Map<string, number>();
@@ -199,6 +200,7 @@ async function main(): Promise<void> {
 
   if (SECTIONS.has('bandwidth')) await bandwidthSection(figures);
   if (SECTIONS.has('steady')) await steadySection();
+  if (SECTIONS.has('siting')) await sitingBenchmarks(print); // the demo's siting map against the forward runs it replaces (tests/bench/siting.ts)
 }
 
 async function bandwidthSection(figures: Map<string, number>): Promise<void> {
