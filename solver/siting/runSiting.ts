@@ -201,7 +201,7 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   const mapSeconds = (performance.now() - mapStarted) / 1000;
 
   // The site polygon and the best position.
-  const polygon = options.sitePolygon ?? siteBoundaryOf(scenario);
+  const polygon = options.sitePolygon ?? scenario.site.boundary;
   const polygonField = options.sitePolygon !== undefined ? 'site polygon' : 'site.boundary';
   const siteRing_m = polygon === undefined ? null : polygon.map(([lon, lat]) => projection.toLocal(lon, lat));
   const siteMask = siteRing_m === null ? null : columnsInsideRing(grid, siteRing_m, polygonField);
@@ -345,12 +345,6 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
     limits: SITING_LIMITS,
     notes,
   };
-}
-
-/** The scenario's site polygon, once the format carries one (site.boundary, a closed [lon, lat] ring). */
-function siteBoundaryOf(scenario: Scenario): [number, number][] | undefined {
-  const boundary = (scenario.site as { boundary?: unknown }).boundary;
-  return Array.isArray(boundary) ? (boundary as [number, number][]) : undefined;
 }
 
 /**
