@@ -143,22 +143,13 @@ describe('point source through the driver', () => {
     const result = runGaussianSteady(
       input({ sources: [source], windProfile: 'powerLaw', receptors: [receptor('r', 1200, 40, 1.5)], weather: weather({ mixingHeight_m: 800 }) }),
     );
-    const uTop = 5 * Math.pow(30 / 10, 0.15); // Irwin D rural exponent, from memory
-    const rise = briggsPlumeRise(source, uTop, 'D', 288);
-    const effective = 30 + rise.finalRise_m;
-    expectRelative(result.sources[0].effectiveHeight_m, effective, 1e-12);
-    const uPlume = 5 * Math.pow(effective / 10, 0.15);
-    const plume = new GaussianPlume({
-      emission_g_s: 1.5,
-      windSpeed_m_s: uPlume,
-      releaseHeight_m: 30,
-      riseAt: rise.riseAt,
-      mixingHeight_m: 800,
-      sigmas: sigmasFor({ kind: 'stability', curves: 'briggs' }, 'D', 'rural'),
-      lossRate_per_s: 0,
-      depositionVelocity_m_s: 0,
-    });
-    expectRelative(result.receptors_ug_m3[0], 1e6 * plume.concentration_g_m3(1200, 40, 1.5), 1e-12);
+    // Worked in Python from REFERENCES.md alone [derived]: wind at the stack top 5 * 3^0.15 = 5.89574 m/s
+    // (Irwin D rural exponent, from memory); F = 9.24627 m4/s3, final rise 21.425 F^(3/4) / u = 19.2689 m
+    // (reached at x_f = 196.8 m, before the receptor), H = 49.2689 m; the plume's wind 5 (H/10)^0.15 = 6.35120 m/s;
+    // Briggs D open country at 1200 m: sigma_y 90.7115 m, sigma_z 43.0282 m; ground and lid (800 m) images:
+    // C(1200, 40, 1.5) = 9.07454 ug/m3 for 1.5 g/s.
+    expectRelative(result.sources[0].effectiveHeight_m, 49.2689, 1e-5);
+    expectRelative(result.receptors_ug_m3[0], 9.07454, 1e-5);
     expect(result.notes.some((n) => n.includes('source stack: Briggs plume rise'))).toBe(true);
   });
 
@@ -181,6 +172,40 @@ describe('point source through the driver', () => {
     );
     expectRelative(wet.receptors_ug_m3[0] / dry.receptors_ug_m3[0], Math.exp((-7e-5 * Math.pow(2, 0.8) * 900) / 5), 1e-12);
     expect(dry.notes).toContain('no washout (no rain)');
+  });
+
+  it('dry deposition through the driver: the source-depletion factor in closed form (constant K, elevated release), 1e-3', () => {
+    // Source depletion (Chamberlain 1953, from memory): Q(x) / Q = exp(-(v_d / u) integral_0^x Z(0; x') dx'),
+    // Z(0) = 2 exp(-H^2 / 2 s^2) / (sqrt(2 pi) s), and with constant K the spread is s^2 = 2 K x / u
+    // (REFERENCES.md, slender-plume limit). With a = H^2 u / 4K the integral has the closed form [derived]
+    //   sqrt(2 / pi) sqrt(u / 2K) [2 sqrt(x) exp(-a / x) - 2 sqrt(pi a) erfc(sqrt(a / x))],
+    // (differentiate it to check), so C(v_d) / C(0) at the ground on the axis is that factor. The 1e-3
+    // tolerance is a tenth of what a 10 % error in v_d moves it by (1.6 % at 2 km).
+    const erfc = (z: number): number => {
+      // Abramowitz & Stegun 7.1.26, |error| < 1.5e-7 for z >= 0
+      const t = 1 / (1 + 0.3275911 * z);
+      const poly = t * (0.254829592 + t * (-0.284496736 + t * (1.421413741 + t * (-1.453152027 + t * 1.061405429))));
+      return poly * Math.exp(-z * z);
+    };
+    const K = 10;
+    const u = 5;
+    const H = 50;
+    const vd = 0.05;
+    const receptors = [1000, 2000, 4000].map((x) => receptor(`x${x}`, x, 0, 0));
+    const dispersion = { kind: 'constant' as const, horizontal_m2_s: K, vertical_m2_s: K };
+    const run = (depositionVelocity_m_s: number) =>
+      runGaussianSteady(
+        input({ receptors, dispersion, sources: [stack({ height_m: H })], pollutant: { name: 'x', halfLife_h: null, washout: null, depositionVelocity_m_s } }),
+      ).receptors_ug_m3;
+    const dry = run(vd);
+    const none = run(0);
+    const a = (H * H * u) / (4 * K);
+    receptors.forEach((r, n) => {
+      const x = r.x_m;
+      const integral =
+        Math.sqrt(2 / Math.PI) * Math.sqrt(u / (2 * K)) * (2 * Math.sqrt(x) * Math.exp(-a / x) - 2 * Math.sqrt(Math.PI * a) * erfc(Math.sqrt(a / x)));
+      expectRelative(dry[n] / none[n], Math.exp((-vd / u) * integral), 1e-3);
+    });
   });
 
   it('notes say whether dry deposition was applied', () => {
