@@ -31,8 +31,9 @@
  * from it, while a constant eddy diffusivity can only give sqrt(x). What a plume feels, though, is the
  * diffusivity of the layers it has reached, and it reaches higher layers the farther it travels. So
  * plumeplan takes the Briggs (1973) open-country or urban curves (Boubel et al. 1994, Tables 19-6/19-7;
- * REFERENCES.md) and gives each layer at height z the diffusivity that reproduces the Briggs growth of
- * the crosswind variance at the travel distance x_z where a ground-level plume's mean height reaches z:
+ * REFERENCES.md; the one table, in ../reference/dispersionCurves.ts, that the Gaussian mode uses too) and
+ * gives each layer at height z the diffusivity that reproduces the Briggs growth of the crosswind
+ * variance at the travel distance x_z where a ground-level plume's mean height reaches z:
  *
  *   K_h(z) = u(z) (1/2) d(sigma_y^2)/dx at x = x_z,   with sqrt(2/pi) sigma_z(x_z) = z
  *
@@ -47,6 +48,7 @@
 import type { LandUse, StabilityClass } from '../../scenarios/format/types.ts';
 import type { ResolvedWeather } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
+import { briggsRow, briggsTermSlope, evaluateBriggsTerm as evaluateTerm } from '../reference/dispersionCurves.ts';
 import type { DiffusivityClosure } from './types.ts';
 
 /** von Karman constant [-] (0.4, common practice). */
@@ -86,53 +88,6 @@ export const HORIZONTAL_MATCH_RANGE_m = { nearest: 1, farthest: 10_000 } as cons
 /** Mean height of a ground-reflected Gaussian plume per unit sigma_z: sqrt(2 / pi) [-]. */
 const MEAN_HEIGHT_PER_SIGMA_Z = Math.sqrt(2 / Math.PI);
 
-/** One Briggs term: coefficient x (1 + growth x)^power [m], x in m. */
-interface BriggsTerm {
-  coefficient: number;
-  growth_per_m: number;
-  power: number;
-}
-const briggsTerm = (coefficient: number, growth_per_m: number, power: number): BriggsTerm => ({ coefficient, growth_per_m, power });
-
-/**
- * Briggs (1973) sigma_y and sigma_z, 100 m < x < 10 km (Boubel et al. 1994, Tables 19-6/19-7, after
- * Gifford 1976 [read]; REFERENCES.md). Urban A-B and E-F share rows.
- */
-const BRIGGS: Readonly<Record<LandUse, Record<StabilityClass, { sigmaY: BriggsTerm; sigmaZ: BriggsTerm }>>> = {
-  rural: {
-    A: { sigmaY: briggsTerm(0.22, 0.0001, -0.5), sigmaZ: briggsTerm(0.2, 0, 0) },
-    B: { sigmaY: briggsTerm(0.16, 0.0001, -0.5), sigmaZ: briggsTerm(0.12, 0, 0) },
-    C: { sigmaY: briggsTerm(0.11, 0.0001, -0.5), sigmaZ: briggsTerm(0.08, 0.0002, -0.5) },
-    D: { sigmaY: briggsTerm(0.08, 0.0001, -0.5), sigmaZ: briggsTerm(0.06, 0.0015, -0.5) },
-    E: { sigmaY: briggsTerm(0.06, 0.0001, -0.5), sigmaZ: briggsTerm(0.03, 0.0003, -1) },
-    F: { sigmaY: briggsTerm(0.04, 0.0001, -0.5), sigmaZ: briggsTerm(0.016, 0.0003, -1) },
-  },
-  urban: {
-    A: { sigmaY: briggsTerm(0.32, 0.0004, -0.5), sigmaZ: briggsTerm(0.24, 0.001, 0.5) },
-    B: { sigmaY: briggsTerm(0.32, 0.0004, -0.5), sigmaZ: briggsTerm(0.24, 0.001, 0.5) },
-    C: { sigmaY: briggsTerm(0.22, 0.0004, -0.5), sigmaZ: briggsTerm(0.2, 0, 0) },
-    D: { sigmaY: briggsTerm(0.16, 0.0004, -0.5), sigmaZ: briggsTerm(0.14, 0.0003, -0.5) },
-    E: { sigmaY: briggsTerm(0.11, 0.0004, -0.5), sigmaZ: briggsTerm(0.08, 0.0015, -0.5) },
-    F: { sigmaY: briggsTerm(0.11, 0.0004, -0.5), sigmaZ: briggsTerm(0.08, 0.0015, -0.5) },
-  },
-};
-
-const evaluateTerm = (t: BriggsTerm, x_m: number): number => t.coefficient * x_m * Math.pow(1 + t.growth_per_m * x_m, t.power);
-
-/** d/dx of coefficient x (1 + g x)^p = coefficient (1 + g x)^(p - 1) (1 + (1 + p) g x) [-]. */
-const termSlope = (t: BriggsTerm, x_m: number): number =>
-  t.coefficient * Math.pow(1 + t.growth_per_m * x_m, t.power - 1) * (1 + (1 + t.power) * t.growth_per_m * x_m);
-
-function briggsRow(stability: StabilityClass, landUse: LandUse): { sigmaY: BriggsTerm; sigmaZ: BriggsTerm } {
-  const row = BRIGGS[landUse]?.[stability];
-  if (row === undefined) {
-    throw new RangeError(
-      `stability ${JSON.stringify(stability)}, landUse ${JSON.stringify(landUse)}: not allowed (A..F; "rural" or "urban")`,
-    );
-  }
-  return row;
-}
-
 /** Briggs sigma_y at distance x [m]. */
 export function briggsSigmaY_m(stability: StabilityClass, landUse: LandUse, x_m: number): number {
   return evaluateTerm(briggsRow(stability, landUse).sigmaY, x_m);
@@ -170,7 +125,7 @@ export function travelDistanceToHeight_m(stability: StabilityClass, landUse: Lan
 export function crosswindSpreadingLength_m(stability: StabilityClass, landUse: LandUse, z_m: number): number {
   const x_m = travelDistanceToHeight_m(stability, landUse, z_m);
   const sigmaY = briggsRow(stability, landUse).sigmaY;
-  return evaluateTerm(sigmaY, x_m) * termSlope(sigmaY, x_m);
+  return evaluateTerm(sigmaY, x_m) * briggsTermSlope(sigmaY, x_m);
 }
 
 /**

@@ -49,13 +49,14 @@ export const PASQUILL_GIFFORD_SIGMA_Z_CAP_M = 5000;
  * One Briggs term: coefficient * x * (1 + growth * x)^power. Every Briggs sigma has this shape
  * (power 0 for the plain linear rows).
  */
-interface BriggsTerm {
+export interface BriggsTerm {
   coefficient: number;
   growth_per_m: number;
   power: number;
 }
 
-interface BriggsRow {
+/** The sigma_y and sigma_z terms of one class and land use. */
+export interface BriggsRow {
   sigmaY: BriggsTerm;
   sigmaZ: BriggsTerm;
 }
@@ -88,11 +89,22 @@ const BRIGGS_URBAN: Readonly<Record<StabilityClass, BriggsRow>> = {
   F: URBAN_EF,
 };
 
-function evaluateBriggsTerm(t: BriggsTerm, x_m: number): number {
+/** A Briggs term at distance x [m]: coefficient x (1 + growth x)^power [m]. */
+export function evaluateBriggsTerm(t: BriggsTerm, x_m: number): number {
   return t.power === 0 ? t.coefficient * x_m : t.coefficient * x_m * Math.pow(1 + t.growth_per_m * x_m, t.power);
 }
 
-function briggsRow(stability: StabilityClass, landUse: LandUse): BriggsRow {
+/** d/dx of coefficient x (1 + g x)^p = coefficient (1 + g x)^(p - 1) (1 + (1 + p) g x) [-]. */
+export function briggsTermSlope(t: BriggsTerm, x_m: number): number {
+  return t.coefficient * Math.pow(1 + t.growth_per_m * x_m, t.power - 1) * (1 + (1 + t.power) * t.growth_per_m * x_m);
+}
+
+/**
+ * The Briggs (1973) terms of a class and land use: the one table every part of plumeplan uses (the
+ * Gaussian mode's curves and the grid closure's horizontal diffusivity).
+ * @throws RangeError for an unknown land use or class
+ */
+export function briggsRow(stability: StabilityClass, landUse: LandUse): BriggsRow {
   const table = landUse === 'urban' ? BRIGGS_URBAN : landUse === 'rural' ? BRIGGS_OPEN_COUNTRY : undefined;
   if (table === undefined) throw new RangeError(`landUse is ${JSON.stringify(landUse)}; allowed: "rural" or "urban"`);
   const row = table[stability];
