@@ -185,7 +185,17 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
     }
     model.field.set(options.initialField_g_m3);
   }
-  const report = solveSteadyState(model, { tolerance, maxSweeps: options.maxSweeps, lidLimited: options.lidLimited, activeColumnsOnly: options.activeColumnsOnly, andersonDepth: options.andersonDepth, correctionInterval: options.correctionInterval, control });
+  const report = solveSteadyState(model, {
+    tolerance,
+    maxSweeps: options.maxSweeps,
+    lidLimited: options.lidLimited,
+    activeColumnsOnly: options.activeColumnsOnly,
+    andersonDepth: options.andersonDepth,
+    correctionInterval: options.correctionInterval,
+    // The solve stops only when the budget closes to the tolerance too.
+    budgetImbalance: () => steadyBudgetRates_g_s(model).relativeImbalance,
+    control,
+  });
 
   const rates = steadyBudgetRates_g_s(model);
   const heldMass_g = paddedFieldMass_g(model.layout, grid, model.field);
@@ -222,7 +232,9 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
       (report.activeColumnFraction < 1
         ? `${(100 * report.activeColumnFraction).toFixed(0)} % of the columns swept (the rest below ${ACTIVE_COLUMN_THRESHOLD} of the peak), `
         : '') +
-      `last relative change ${report.lastChange.toExponential(2)} (tolerance ${tolerance.toExponential(0)})` +
+      `last relative change ${report.lastChange.toExponential(2)}` +
+      (report.budgetImbalance !== null ? ` and budget imbalance ${report.budgetImbalance.toExponential(2)}` : '') +
+      ` (tolerance ${tolerance.toExponential(0)} on both)` +
       (report.converged ? '' : '; NOT CONVERGED within the sweep limit, figures are approximate'),
     `advection ${model.advection.name}; diffusivities ${model.closure.name}`,
     `no-flux lid at ${grid.zFaces_m[lidFace].toFixed(0)} m (mixing height ${weather.mixingHeight_m} m, grid top ${grid.zFaces_m[grid.nz].toFixed(0)} m)`,

@@ -96,6 +96,18 @@ describe('solveGridSteady', () => {
     expect(result.notes.join(' ')).toMatch(/dry deposition applied/);
   });
 
+  it('stops only when the mass budget closes to the tolerance as well as the change per sweep', () => {
+    // Conservation check (STYLE.md): emitted = decayed + washed out + deposited + outflow at steady state.
+    // The change per sweep alone stopped with the imbalance about 50 times the tolerance (demo: 5.5e-5 at 1e-6).
+    const input = baseInput({ weather: { ...weather, windFrom_deg: 250 } });
+    for (const tolerance of [1e-5]) {
+      const { result, report } = solveGridSteadyDetailed(input, {}, { tolerance });
+      expect(report.converged).toBe(true);
+      expect(Math.abs(result.massBudget_g!.relativeImbalance)).toBeLessThanOrEqual(tolerance);
+      expect(report.budgetImbalance).toBe(result.massBudget_g!.relativeImbalance);
+    }
+  });
+
   it('a stack moved within its cell changes the far field smoothly (trilinear release)', () => {
     // Moving the stack by 0.4 of a cell must move the plume, not jump it: the receptor 1 km downwind
     // changes by under 1 %, and a stack at the cell edge gives the mean of its two neighbours' answers

@@ -1,8 +1,8 @@
 /**
  * Hourly series and wind roses in grid mode on a small grid (50 x 50 x 16 at 100 m).
  * - speed scaling of a grid solve is exact: the steady discrete equations are homogeneous in the wind
- *   when the closure is proportional to it (stabilityDiffusivity.ts), so field(u) = field(u0) u0 / u to
- *   rounding (checked against fresh solves);
+ *   when the closure is proportional to it (stabilityDiffusivity.ts), so field(u) = field(u0) u0 / u
+ *   (checked against fresh solves, to the solve tolerance: see the test);
  * - 24 identical hours reproduce the steady result within 1 % (issue check), hour by hour and as one
  *   continuous time-march (the march's hourly means approach the steady field once the plume has
  *   crossed the domain);
@@ -14,6 +14,7 @@ import { describe, expect, it } from 'vitest';
 import { runHourlySeries } from '../../../solver/drivers/hourlySeries.ts';
 import { runWindRose } from '../../../solver/drivers/windRose.ts';
 import { solveGridSteady } from '../../../solver/drivers/gridSteady.ts';
+import { STEADY_TOLERANCE } from '../../../solver/timestepping/steadySweep.ts';
 import { continuousGridSeries } from '../../../solver/drivers/runScenario.ts';
 import { resolveWeather } from '../../../solver/meteorology/resolveWeather.ts';
 import type { SteadySolver } from '../../../solver/drivers/solveSteady.ts';
@@ -30,7 +31,13 @@ describe('series in grid mode (small grid)', () => {
   const fields = { windSpeed_m_s: 4, windFrom_deg: 250, stability: 'D' as const, mixingHeight_m: 800, rain_mm_h: 0, airTemperature_K: 285, anemometerHeight_m: 10 };
   const steady = solveGridSteady({ ...base, weather: resolveWeather(fields, SITE) });
 
-  it('speed-scaled reuse equals fresh grid solves to 1e-9 (exact scaling)', async () => {
+  it('speed-scaled reuse equals fresh grid solves to the solve tolerance (exact scaling)', async () => {
+    // The scaling is exact in exact arithmetic: the sweeps of the field at u are those at u0 times u0 / u,
+    // and the stopping tests (relative change, relative budget imbalance) do not see the scale. In floating
+    // point a stopping test within rounding of its threshold can stop one solve a sweep before the other,
+    // so the two agree to what one sweep changes at convergence, not to rounding: within 10 x the solve
+    // tolerance (the change per sweep is below STEADY_TOLERANCE at the stop; the error left is a few times
+    // that at the observed contraction). A closure that did not scale with u would miss by percents.
     const hours = hoursFrom('2031-06-01T00:00Z', 12, (h) => ({ windSpeed_m_s: 2 + h * 0.5, windFrom_deg: 250, stability: h % 2 ? 'B' : 'E', mixingHeight_m: 600 }));
     const scaled = await runHourlySeries(base, hours, { mode: 'grid', method: 'independentHours', site: SITE, solve: grid });
     const fresh = await runHourlySeries(base, hours, { mode: 'grid', method: 'independentHours', site: SITE, solve: grid, speedScaling: false });
@@ -40,7 +47,7 @@ describe('series in grid mode (small grid)', () => {
       const a = column(scaled, key);
       const b = column(fresh, key);
       expect(b[0]).toBeGreaterThan(0);
-      for (let r = 0; r < a.length; r++) expect(Math.abs(a[r] - b[r])).toBeLessThanOrEqual(1e-9 * b[r] + 1e-15);
+      for (let r = 0; r < a.length; r++) expect(Math.abs(a[r] - b[r])).toBeLessThanOrEqual(10 * STEADY_TOLERANCE * b[r]);
     }
   });
 
