@@ -727,11 +727,35 @@ const standardSchema = strictObject(
   {
     name: text('name of the standard, also the name of its result columns'),
     limit_ug_m3: quantity({ above: 0 }, 'ug/m3', 'limit value'),
-    averaging_h: quantity({ above: 0 }, 'h', 'averaging period: 1, 24, or 8760 and more for the period mean'),
+    averaging_h: quantity(
+      { above: 0 },
+      'h',
+      'averaging period: 1, a divisor of 24 (calendar-aligned means), or 8760 and more for the period mean; with runningMean, a whole number of hours from 2 to 24',
+    ),
     allowedExceedances: quantity({ integer: true, atLeast: 0 }, null, 'averaging periods a year allowed above the limit'),
+    runningMean: flag(
+      'true: each day\'s maximum of the running means over averaging_h hours (the CO standard: the maximum daily 8-hour running mean); allowedExceedances then counts days',
+    ).optional(),
   },
   'an air-quality standard',
-);
+).superRefine((standard, context) => {
+  // The same rule the statistics apply (solver/diagnostics/statistics.ts), checked here so that validate
+  // refuses what a run would refuse.
+  const h = standard.averaging_h;
+  const allowed = standard.runningMean
+    ? Number.isInteger(h) && h >= 2 && h <= 24
+    : h >= 8760 || (Number.isInteger(h) && h >= 1 && 24 % h === 0);
+  if (!allowed) {
+    context.addIssue({
+      code: 'custom',
+      path: ['averaging_h'],
+      message: standard.runningMean
+        ? 'running means need a whole number of hours from 2 to 24 (8 for the CO standard)'
+        : 'is not a supported averaging period: 1, a divisor of 24 (2, 3, 4, 6, 8, 12, 24 h, calendar-aligned), or 8760 and more ' +
+          'for the period mean; for running means (the CO standard) set runningMean: true',
+    });
+  }
+});
 
 const assessmentSchema = strictObject(
   {

@@ -205,6 +205,12 @@ export interface AirQualityStandard {
   averaging_h: number;
   /** number of averaging periods a year allowed above the limit */
   allowedExceedances: number;
+  /**
+   * true: the statistic is each day's maximum of the running means over averaging_h hours, each mean
+   * assigned to the day it ends in (the CO standard: the maximum daily 8-hour running mean); then the
+   * periods a year are days and allowedExceedances counts days. Absent or false: calendar-aligned means.
+   */
+  runningMean?: boolean;
 }
 
 export interface Assessment {

@@ -19,6 +19,12 @@
  *   data-capture rule for daily means from hourly values in Directive 2008/50/EC, from memory); the
  *   others are reported as incomplete and left out. Other averaging periods shorter than a day must
  *   divide 24 and are calendar-aligned blocks in the same way (same 75 % rule).
+ * - Running means (a standard with runningMean, the CO standard's "maximum daily 8-hour running mean",
+ *   Directive 2008/50/EC Annex VII, from memory): for every hour present, the mean of the hours present
+ *   among the averaging_h hours ending with it, kept when at least 75 % of them are present (6 of 8); each
+ *   running mean is assigned to the calendar day (series offset) in which its last hour falls, and the
+ *   day's statistic is its largest running mean. A day counts when at least 75 % of its 24 running means
+ *   are kept (18); periods a year are then days (365), and allowedExceedances counts days.
  * - averaging_h >= 8760: the mean over the whole series (the period mean), compared with the limit.
  * - Hours missing from the series are neither invented nor interpolated: statistics use the hours
  *   present, and the coverage (present / expected, with each gap) is reported beside them.
@@ -197,19 +203,32 @@ export function percentileForStandard(standard: AirQualityStandard): number {
   return 100 * (1 - standard.allowedExceedances / periodsPerYear);
 }
 
-/** Averaging periods a year for a standard: 8760 / averaging_h; 1 for the period mean. */
+/** Days in the year the standards count [d]. */
+export const DAYS_PER_YEAR = 365;
+
+/** Averaging periods a year for a standard: 8760 / averaging_h; 1 for the period mean; 365 days for running means. */
 export function periodsPerYearOf(standard: AirQualityStandard): number {
   checkAveraging(standard);
+  if (standard.runningMean === true) return DAYS_PER_YEAR;
   return standard.averaging_h >= HOURS_PER_YEAR ? 1 : HOURS_PER_YEAR / standard.averaging_h;
 }
 
-function checkAveraging(standard: AirQualityStandard): void {
+function checkAveraging(standard: Pick<AirQualityStandard, 'name' | 'averaging_h' | 'runningMean'>): void {
   const h = standard.averaging_h;
+  if (standard.runningMean === true) {
+    if (!(Number.isInteger(h) && h >= 2 && h <= 24)) {
+      throw new RangeError(
+        `assessment.standards["${standard.name}"].averaging_h: ${h} is not allowed for running means ` +
+          '(a whole number of hours from 2 to 24; 8 for the CO standard)',
+      );
+    }
+    return;
+  }
   const ok = h >= HOURS_PER_YEAR || (Number.isInteger(h) && h >= 1 && 24 % h === 0);
   if (!ok) {
     throw new RangeError(
       `assessment.standards["${standard.name}"].averaging_h: ${h} is not allowed ` +
-        '(1, a divisor of 24 such as 8 or 24, or 8760 and more for the period mean)',
+        '(1, a divisor of 24 such as 8 or 24, or 8760 and more for the period mean; runningMean for running means)',
     );
   }
 }
@@ -220,6 +239,11 @@ function checkAveraging(standard: AirQualityStandard): void {
  */
 export interface AveragingPlan {
   averaging_h: number;
+  /**
+   * daily maxima of running means (a standard with runningMean): for each hour present, the index of the
+   * first hour present in its window, or -1 when the window has too few hours; null for block means
+   */
+  running: { windowStart: Int32Array; dayOfHour: Int32Array } | null;
   /** for each hour present, the index of its averaging period, or -1 when that period is incomplete */
   periodOfHour: Int32Array;
   /** hours present in each complete period */
@@ -236,17 +260,23 @@ export interface AveragingPlan {
  * @param offsetMinutes the series' time-zone offset [min east of UTC]
  * @param averaging_h the standard's averaging period [h]: 1, a divisor of 24, or >= 8760
  */
-export function averagingPlan(hourStarts_ms: ArrayLike<number>, offsetMinutes: number, averaging_h: number): AveragingPlan {
+export function averagingPlan(
+  hourStarts_ms: ArrayLike<number>,
+  offsetMinutes: number,
+  averaging_h: number,
+  runningMean = false,
+): AveragingPlan {
   const count = hourStarts_ms.length;
   const periodOfHour = new Int32Array(count);
+  if (runningMean) return runningMeanPlan(hourStarts_ms, offsetMinutes, averaging_h);
   if (averaging_h === 1) {
     for (let h = 0; h < count; h++) periodOfHour[h] = h;
-    return { averaging_h, periodOfHour, hoursInPeriod: new Int32Array(count).fill(1), periodCount: count, incompletePeriods: 0 };
+    return { averaging_h, running: null, periodOfHour, hoursInPeriod: new Int32Array(count).fill(1), periodCount: count, incompletePeriods: 0 };
   }
   if (averaging_h >= HOURS_PER_YEAR) {
-    return { averaging_h, periodOfHour, hoursInPeriod: Int32Array.of(count), periodCount: count > 0 ? 1 : 0, incompletePeriods: 0 };
+    return { averaging_h, running: null, periodOfHour, hoursInPeriod: Int32Array.of(count), periodCount: count > 0 ? 1 : 0, incompletePeriods: 0 };
   }
-  checkAveraging({ name: 'averaging', limit_ug_m3: 0, averaging_h, allowedExceedances: 0 });
+  checkAveraging({ name: 'averaging', averaging_h });
   // Block number in local time: whole local days since the epoch times blocks a day, plus the block
   // within the day. Consecutive hours of one block share the number.
   const blockKeys: number[] = [];
@@ -278,10 +308,55 @@ export function averagingPlan(hourStarts_ms: ArrayLike<number>, offsetMinutes: n
   for (let h = 0; h < count; h++) periodOfHour[h] = renumbered[periodOfHour[h]];
   return {
     averaging_h,
+    running: null,
     periodOfHour,
     hoursInPeriod: Int32Array.from(hoursInPeriod),
     periodCount: hoursInPeriod.length,
     incompletePeriods,
+  };
+}
+
+/**
+ * The plan of daily maxima of running means (file comment): each hour's window, and the day each
+ * window's mean belongs to (-1 for a day with fewer than 75 % of its running means).
+ */
+function runningMeanPlan(hourStarts_ms: ArrayLike<number>, offsetMinutes: number, averaging_h: number): AveragingPlan {
+  checkAveraging({ name: 'averaging', averaging_h, runningMean: true });
+  const count = hourStarts_ms.length;
+  const windowStart = new Int32Array(count);
+  const minimumHours = Math.ceil(MINIMUM_PERIOD_CAPTURE * averaging_h);
+  let first = 0;
+  for (let h = 0; h < count; h++) {
+    // hours whose start lies within (averaging_h - 1) h before this hour's start
+    const earliest_ms = hourStarts_ms[h] - (averaging_h - 1) * HOUR_MS;
+    while (hourStarts_ms[first] < earliest_ms) first++;
+    windowStart[h] = h - first + 1 >= minimumHours ? first : -1;
+  }
+  // Days in the series' offset; a running mean belongs to the day its last hour is in.
+  const dayKeys: number[] = [];
+  const keptPerDay: number[] = [];
+  const dayOfHour = new Int32Array(count);
+  for (let h = 0; h < count; h++) {
+    const day = Math.floor((hourStarts_ms[h] + offsetMinutes * 60_000) / (24 * HOUR_MS));
+    if (dayKeys.length === 0 || dayKeys[dayKeys.length - 1] !== day) {
+      dayKeys.push(day);
+      keptPerDay.push(0);
+    }
+    dayOfHour[h] = dayKeys.length - 1;
+    if (windowStart[h] >= 0) keptPerDay[keptPerDay.length - 1]++;
+  }
+  const minimumMeans = Math.ceil(MINIMUM_PERIOD_CAPTURE * 24);
+  const renumbered = new Int32Array(dayKeys.length).fill(-1);
+  let periodCount = 0;
+  for (let d = 0; d < dayKeys.length; d++) if (keptPerDay[d] >= minimumMeans) renumbered[d] = periodCount++;
+  for (let h = 0; h < count; h++) dayOfHour[h] = renumbered[dayOfHour[h]];
+  return {
+    averaging_h,
+    running: { windowStart, dayOfHour },
+    periodOfHour: dayOfHour,
+    hoursInPeriod: new Int32Array(periodCount).fill(24),
+    periodCount,
+    incompletePeriods: dayKeys.length - periodCount,
   };
 }
 
@@ -293,6 +368,24 @@ export function averagingPlan(hourStarts_ms: ArrayLike<number>, offsetMinutes: n
  */
 export function periodMeans(hourly: ArrayLike<number>, plan: AveragingPlan, out?: Float64Array): Float64Array {
   const means = out && out.length >= plan.periodCount ? out.subarray(0, plan.periodCount) : new Float64Array(plan.periodCount);
+  if (plan.running !== null) {
+    // Each day's largest running mean; the running sums slide along the hours present.
+    const { windowStart, dayOfHour } = plan.running;
+    means.fill(Number.NEGATIVE_INFINITY);
+    let sum = 0;
+    let first = 0;
+    for (let h = 0; h < hourly.length; h++) {
+      sum += hourly[h];
+      const start = windowStart[h];
+      if (start < 0) continue;
+      while (first < start) sum -= hourly[first++];
+      const day = dayOfHour[h];
+      if (day < 0) continue;
+      const value = sum / (h - start + 1);
+      if (value > means[day]) means[day] = value;
+    }
+    return means;
+  }
   if (plan.averaging_h === 1) {
     for (let h = 0; h < hourly.length; h++) means[h] = hourly[h];
     return means;

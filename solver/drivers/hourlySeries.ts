@@ -16,7 +16,7 @@
  * reported (never filled in), and every statistic is over the hours present.
  */
 import type { HourlyMethod, WeatherHour } from '../../scenarios/format/types.ts';
-import { HOURS_PER_YEAR, seriesCoverage } from '../diagnostics/statistics.ts';
+import { HOURS_PER_YEAR, percentileForStandard, seriesCoverage } from '../diagnostics/statistics.ts';
 import { CALM_THRESHOLD_m_s, resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { parseIsoTime } from '../meteorology/time.ts';
 import { windRoseFromHours } from '../meteorology/windRoseTable.ts';
@@ -157,14 +157,18 @@ export async function runHourlySeries(
       options.assessment,
       statistics.standards.map((s) => ({
         standard: s.standard,
-        statistic: s.standard.averaging_h >= HOURS_PER_YEAR ? 'period mean' : `percentile of ${s.standard.averaging_h}-hour means`,
-        percentile: s.standard.averaging_h >= HOURS_PER_YEAR ? undefined : 100 * (1 - s.standard.allowedExceedances / (HOURS_PER_YEAR / s.standard.averaging_h)),
+        statistic: s.standard.runningMean
+          ? `percentile of the daily maxima of running ${s.standard.averaging_h}-hour means`
+          : s.standard.averaging_h >= HOURS_PER_YEAR
+            ? 'period mean'
+            : `percentile of ${s.standard.averaging_h}-hour means`,
+        percentile: s.standard.averaging_h >= HOURS_PER_YEAR && !s.standard.runningMean ? undefined : percentileForStandard(s.standard),
         periods: s.plan.periodCount,
         incompletePeriods: s.plan.incompletePeriods,
         receptorValues: s.receptorValues,
         receptorExceedances: s.receptorExceedances,
         groundValues: s.groundValues,
-        exceedanceBasis: s.standard.averaging_h >= HOURS_PER_YEAR ? 'the period mean (1 if above the limit)' : 'periods in the series',
+        exceedanceBasis: s.standard.runningMean ? 'days in the series' : s.standard.averaging_h >= HOURS_PER_YEAR ? 'the period mean (1 if above the limit)' : 'periods in the series',
       })),
     );
   }

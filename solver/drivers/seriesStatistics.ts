@@ -68,7 +68,7 @@ export function seriesStatistics(
   const hours = values.hours;
   const standards = (assessment?.standards ?? []).map((standard) => ({
     standard,
-    plan: averagingPlan(hourStarts_ms, offsetMinutes, standard.averaging_h),
+    plan: averagingPlan(hourStarts_ms, offsetMinutes, standard.averaging_h, standard.runningMean === true),
   }));
   const background = assessment?.background_ug_m3 ?? 0;
   const series = new Float64Array(hours);

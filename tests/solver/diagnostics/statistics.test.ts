@@ -180,3 +180,51 @@ describe('weighted percentile (frequency distribution of a wind rose)', () => {
     expect(weightedPercentile([5, 1, 100], [0.099, 0.9, 0.001], 50)).toBe(1);
   });
 });
+
+describe('daily maximum of running 8-hour means (the CO standard; Directive 2008/50/EC Annex VII, from memory)', () => {
+  const HOUR = 3_600_000;
+  const start = Date.UTC(2031, 0, 1);
+  const hoursFrom = (count: number, skip: (h: number) => boolean = () => false) =>
+    Float64Array.from(Array.from({ length: count }, (_, h) => h).filter((h) => !skip(h)).map((h) => start + h * HOUR));
+  const co = { name: 'CO 8-hour', limit_ug_m3: 1.28, averaging_h: 8, allowedExceedances: 0, runningMean: true };
+
+  it('each running mean belongs to the day its last hour is in; the day takes the largest (worked by hand)', () => {
+    // Day 1: 1 from 10:00 to 17:00, 8 at 23:00; day 2: 2.4 at 06:00 (UTC, offset 0). By hand:
+    // day 1: the window 10:00-17:00 has mean 1, the window 16:00-23:00 (1 + 1 + 8) / 8 = 1.25, its largest;
+    // day 2: 17:00-00:00 gives 9 / 8 = 1.125 and 23:00-06:00 gives (8 + 2.4) / 8 = 1.3, its largest.
+    // Calendar-aligned 8-hour blocks would give 1.25 and 0.3: the 23:00 peak counts for day 2 only when running.
+    const starts = hoursFrom(48);
+    const hourly = new Float64Array(48);
+    for (let h = 10; h <= 17; h++) hourly[h] = 1;
+    hourly[23] = 8;
+    hourly[30] = 2.4;
+    const plan = averagingPlan(starts, 0, 8, true);
+    expect(plan.periodCount).toBe(2);
+    const maxima = periodMeans(hourly, plan);
+    expect(maxima[0]).toBeCloseTo(1.25, 12);
+    expect(maxima[1]).toBeCloseTo(1.3, 12);
+    const blocks = periodMeans(hourly, averagingPlan(starts, 0, 8));
+    expect(blocks[2]).toBeCloseTo(1.25, 12);
+    expect(blocks[3]).toBeCloseTo(0.3, 12);
+    // The standard: periods are days (365 a year), 0 allowed -> the highest daily maximum; one day above 1.28.
+    const figures = standardFigures(hourly, plan, co, 0);
+    expect(figures.value_ug_m3).toBeCloseTo(1.3, 12);
+    expect(figures.exceedances).toBe(1);
+    expect(figures.periods).toBe(2);
+    expect(percentileForStandard({ ...co, allowedExceedances: 3 })).toBeCloseTo(100 * (1 - 3 / 365), 12);
+  });
+
+  it('a running mean needs 6 of its 8 hours, a day 18 of its 24 running means (75 %)', () => {
+    // Day 2 misses 16:00-18:00: the windows ending at 19:00-23:00 hold 5 hours each and are dropped; the
+    // series starts at 00:00 on day 1, so day 1's windows ending before 05:00 are dropped too (19 kept).
+    const starts = hoursFrom(48, (h) => h >= 40 && h <= 42);
+    const plan = averagingPlan(starts, 0, 8, true);
+    expect(plan.periodCount).toBe(1);
+    expect(plan.incompletePeriods).toBe(1);
+  });
+
+  it('refuses averaging periods it cannot compute, naming the standard', () => {
+    expect(() => percentileForStandard({ ...co, averaging_h: 30 })).toThrow(/CO 8-hour.*averaging_h: 30 is not allowed for running means/);
+    expect(() => percentileForStandard({ ...co, runningMean: false, averaging_h: 5 })).toThrow(/averaging_h: 5 is not allowed/);
+  });
+});
