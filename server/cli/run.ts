@@ -219,6 +219,9 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
       `grid ${result.grid.nx} x ${result.grid.ny} x ${result.grid.nz} at ${result.grid.spacing_m} m, ` +
       `${formatSeconds(result.wallSeconds)}`,
     `Results written to ${path.resolve(written.directory)}: ${written.files.join(', ')}`,
+    ...(written.removed.length > 0
+      ? [`Removed from that folder the files of an earlier run that this run does not write: ${written.removed.join(', ')}`]
+      : []),
     peak.onSite !== undefined || scenario.site.boundary !== undefined
       ? `Peak ground-level ${statistic}concentration off the site: ${peak.concentration_ug_m3} ug/m3 at lat ${peak.lat}, ` +
         `lon ${peak.lon} (${describeOffset(peak.x_m, peak.y_m)} of the site)`
@@ -231,6 +234,8 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
         `${describeOffset(peak.onSite.x_m, peak.onSite.y_m)} of the site`,
     );
   }
+  const warnings = result.notes.filter((note) => note.startsWith('input warning: '));
+  if (warnings.length > 0) lines.push('Input warnings (also in summary.json):', ...warnings.map((note) => `  ${note.slice('input warning: '.length)}`));
   if (summary.receptors.length > 0) {
     lines.push('Receptors:', ...receptorTable(summary.receptors, result.receptorColumns.map((column) => column.key)));
   }

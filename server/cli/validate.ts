@@ -6,6 +6,7 @@
 import { loadScenarioFile } from '../scenarioFiles/load.ts';
 import { formatIssues } from '../../scenarios/format/schema.ts';
 import { examineScenarioGeometry } from '../scenarioFiles/semantics.ts';
+import { formatWarnings } from '../../solver/diagnostics/plausibility.ts';
 import { parseCommandLine, UsageError } from './args.ts';
 
 export const VALIDATE_USAGE = `usage: plumeplan validate FILE [FILE...]
@@ -67,13 +68,15 @@ export async function validateCommand(argv: string[], output: CommandOutput = pr
         continue;
       }
       // loadScenarioFile has checked the geometry; build it once more to name the grid.
-      const { geometry } = examineScenarioGeometry(outcome.scenario);
+      const { geometry, warnings } = examineScenarioGeometry(outcome.scenario);
       const { sources, receptors } = outcome.scenario;
       const grid = geometry ? `grid ${geometry.grid.nx} x ${geometry.grid.ny} x ${geometry.grid.nz}` : 'grid not built';
       output.stdout(
         `${file}: valid (${sources.length} ${sources.length === 1 ? 'source' : 'sources'}, ` +
           `${receptors.length} ${receptors.length === 1 ? 'receptor' : 'receptors'}, ${grid})\n`,
       );
+      // Warnings are not errors: the exit code stays 0. A run prints and records the same ones.
+      for (const line of formatWarnings(warnings)) output.stdout(`  warning: ${line}\n`);
     } catch (error) {
       // Same convention as server/cli/main.ts: the stack only with PLUMEPLAN_DEBUG=1.
       const debug = process.env.PLUMEPLAN_DEBUG === '1' && error instanceof Error && error.stack !== undefined;

@@ -16,12 +16,18 @@ import type { LocalGrid, LocalProjection } from '../../solver/grid/types.ts';
 import { placeReceptors, placeSources } from '../../solver/sources/placement.ts';
 import { formatPath, valueAtPath, type ScenarioIssue } from '../../scenarios/format/schema.ts';
 import type { Domain, Scenario } from '../../scenarios/format/types.ts';
+import { inputWarnings, type InputWarning } from '../../solver/diagnostics/plausibility.ts';
 
 export interface GeometryExamination {
   /** every issue found; empty when the scenario fits its grid */
   issues: ScenarioIssue[];
   /** the placed geometry when there were no issues, else null */
   geometry: ScenarioGeometry | null;
+  /**
+   * plausibility warnings (not errors) when there were no issues: the same function a run calls
+   * (solver/diagnostics/plausibility.ts), so validate and run agree
+   */
+  warnings: InputWarning[];
 }
 
 /**
@@ -47,10 +53,19 @@ export function examineScenarioGeometry(scenario: Scenario): GeometryExamination
     const first = issueFromRangeError(error, scenario);
     const placementProblem = /^(sources|receptors)\[/.test(first.path);
     const issues = placementProblem ? (collectPlacementIssues(scenario) ?? [first]) : [first];
-    return { issues: issues.length > 0 ? issues : [first], geometry: null };
+    return { issues: issues.length > 0 ? issues : [first], geometry: null, warnings: [] };
   }
   const issues = checkReleaseHeights(scenario, geometry.grid);
-  return { issues, geometry: issues.length === 0 ? geometry : null };
+  if (issues.length > 0) return { issues, geometry: null, warnings: [] };
+  let warnings: InputWarning[];
+  try {
+    warnings = inputWarnings(scenario, geometry);
+  } catch (error) {
+    // Weather a run could not resolve is an issue there too.
+    if (!(error instanceof RangeError)) throw error;
+    return { issues: [issueFromRangeError(error, scenario)], geometry: null, warnings: [] };
+  }
+  return { issues, geometry, warnings };
 }
 
 /** The grid top [m]. */

@@ -1,9 +1,14 @@
 /**
  * Writes the result folder: summary.json, receptors.csv, footprint.geojson and any extra files the run
  * produced (a wind-rose picture, for instance). The folder is created if it does not exist; files of
- * the same names are replaced, other files in it are left alone.
+ * the same names are replaced.
+ *
+ * A reused folder holds only this run's files: each run also writes `.plumeplan-files.json`, the list of
+ * the files it wrote, and the next run into the folder removes the files on that list that it does not
+ * write again (a wind-rose picture left by an earlier series run, say). Only names on our own list are
+ * ever removed, and only plain files directly in the folder: a file the user put there is never touched.
  */
-import { mkdir, stat, writeFile } from 'node:fs/promises';
+import { lstat, mkdir, readFile, rm, stat, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Scenario } from '../../scenarios/format/types.ts';
 import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
@@ -17,6 +22,10 @@ export const SUMMARY_FILE = 'summary.json';
 export const RECEPTORS_FILE = 'receptors.csv';
 export const FOOTPRINT_FILE = 'footprint.geojson';
 export const WIND_ROSE_FILE = 'windrose.svg';
+/** The list of the files the last run wrote into the folder (see the file comment). */
+export const RESULT_FILES_LIST = '.plumeplan-files.json';
+/** What the list says it is. */
+const RESULT_FILES_FORMAT = 'plumeplan.result-files/1';
 
 export interface ResultFolderOptions {
   /** footprint levels, positive and increasing [ug/m3]; default: round levels across the field's range */
@@ -28,8 +37,10 @@ export interface ResultFolderOptions {
 export interface WrittenResultFolder {
   /** the folder, as given */
   directory: string;
-  /** file names written, in the order written */
+  /** file names written, in the order written (the list of them, RESULT_FILES_LIST, is written last) */
   files: string[];
+  /** files of an earlier run removed from the folder because this run does not write them */
+  removed: string[];
   summary: ResultSummary;
   footprint: FootprintCollection;
 }
@@ -60,8 +71,43 @@ export async function writeResultFolder(
     throw new RangeError(`result folder ${directory}: exists and is not a folder; give a folder to write the results into`);
   }
   await mkdir(directory, { recursive: true });
+  const names = built.contents.map(([name]) => name);
+  const removed = await removeEarlierResultFiles(directory, names);
   for (const [name, text] of built.contents) await writeFile(path.join(directory, name), text, 'utf8');
-  return { directory, files: built.contents.map(([name]) => name), summary: built.summary, footprint: built.footprint };
+  await writeFile(
+    path.join(directory, RESULT_FILES_LIST),
+    `${JSON.stringify({ format: RESULT_FILES_FORMAT, note: 'written by plumeplan: the files of the last run into this folder', files: names }, null, 2)}\n`,
+    'utf8',
+  );
+  return { directory, files: names, removed, summary: built.summary, footprint: built.footprint };
+}
+
+/**
+ * Remove the files the last run listed in RESULT_FILES_LIST that this run will not write again: plain
+ * files directly in the folder, by the names on that list only.
+ * @returns the names removed
+ */
+async function removeEarlierResultFiles(directory: string, keep: readonly string[]): Promise<string[]> {
+  let listed: unknown;
+  try {
+    listed = JSON.parse(await readFile(path.join(directory, RESULT_FILES_LIST), 'utf8'));
+  } catch {
+    return []; // no list (a new folder, or one from before lists were kept): nothing is ours to remove
+  }
+  const files = (listed as { format?: unknown; files?: unknown } | null)?.files;
+  if ((listed as { format?: unknown } | null)?.format !== RESULT_FILES_FORMAT || !Array.isArray(files)) return [];
+  const removed: string[] = [];
+  for (const name of files) {
+    // a bare file name only: nothing outside the folder, no sub-folders, not the list itself
+    if (typeof name !== 'string' || name === '' || name !== path.basename(name) || name === '.' || name === '..') continue;
+    if (name === RESULT_FILES_LIST || keep.includes(name)) continue;
+    const target = path.join(directory, name);
+    const found = await lstat(target).catch(() => null);
+    if (found === null || !found.isFile()) continue;
+    await rm(target);
+    removed.push(name);
+  }
+  return removed;
 }
 
 /** The result folder's files as text, before anything is written. */

@@ -8,6 +8,7 @@ import { SlabPoolExecutor } from '../parallel/slabPool.ts';
 import { MAX_SLABS } from '../timestepping/simd/transportRowModule.ts';
 import { prepareScenarioGeometry, type ScenarioGeometry } from '../grid/scenarioGeometry.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
+import { formatWarnings, inputWarnings } from '../diagnostics/plausibility.ts';
 import { createGridTransient, marchGridPeriod } from './gridTransient.ts';
 import { runHourlySeries, type ContinuousSeriesRunner } from './hourlySeries.ts';
 import type { SeriesBaseInput } from './seriesSolves.ts';
@@ -54,10 +55,17 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const control = options.control ?? {};
   control.onProgress?.(0, 'preparing the grid');
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
+  // The same warnings `plumeplan validate` prints (server/scenarioFiles/semantics.ts calls this too).
+  const warnings = asInputError(() => inputWarnings(scenario, geometry));
   // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
   try {
     const result = await dispatchByWeather(scenario, geometry, mode, control, options);
-    return { ...result, site: geometry.site };
+    return {
+      ...result,
+      site: geometry.site,
+      notes: [...result.notes, ...formatWarnings(warnings).map((line) => `input warning: ${line}`)],
+      extraSummary: { ...result.extraSummary, inputWarnings: warnings },
+    };
   } catch (error) {
     if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
     throw error;

@@ -191,3 +191,37 @@ describe('run', () => {
     expect(run.stdout()).toContain('Results written to');
   });
 });
+
+describe('validate and run agree on the plausibility warnings (one function)', () => {
+  it('cold flue gas, a mixing height below the stack and a receptor on the site: validate prints them, run records them', async () => {
+    const file = smallDemo((scenario) => {
+      scenario.sources[0].exitTemperature_K = 275; // colder than the 283.15 K air
+      scenario.weather.mixingHeight_m = 25; // below the 32 m stack
+      scenario.receptors.push({ id: 'gatehouse', name: 'Gatehouse', lat: 54.0610, lon: -2.2845, height_m: 1.5 });
+    });
+    const validate = capture();
+    expect(await main(['validate', file], validate.io)).toBe(0);
+    const printed = validate.stdout().split('\n').filter((line) => line.startsWith('  warning: ')).map((line) => line.slice('  warning: '.length));
+    expect(printed.map((line) => line.split(' ')[0])).toEqual(['sources[0].exitTemperature_K', 'sources[0].height_m', 'receptors[3]']);
+    const out = path.join(scratch, 'warned');
+    const run = capture();
+    expect(await main(['run', file, '--out', out, '--mode', 'gaussian'], run.io)).toBe(0);
+    const summary = JSON.parse(readFileSync(path.join(out, 'summary.json'), 'utf8'));
+    const recorded = (summary.notes as string[]).filter((note) => note.startsWith('input warning: ')).map((note) => note.slice('input warning: '.length));
+    expect(recorded).toEqual(printed);
+    expect(summary.inputWarnings.map((warning: { path: string }) => warning.path)).toEqual(['sources[0].exitTemperature_K', 'sources[0].height_m', 'receptors[3]']);
+    expect(run.stdout()).toContain('Input warnings (also in summary.json):');
+  });
+
+  it('an averaging period the statistics cannot compute is refused by validate, as by run', async () => {
+    const file = smallDemo((scenario) => {
+      scenario.assessment.standards[0].averaging_h = 5;
+    });
+    const validate = capture();
+    expect(await main(['validate', file], validate.io)).toBe(2);
+    expect(validate.stderr()).toMatch(/assessment\.standards\[0\]\.averaging_h: got 5; is not a supported averaging period/);
+    const run = capture();
+    expect(await main(['run', file, '--out', path.join(scratch, 'refused'), '--mode', 'gaussian'], run.io)).toBe(2);
+    expect(run.stderr()).toMatch(/assessment\.standards\[0\]\.averaging_h/);
+  });
+});

@@ -1,5 +1,5 @@
 /** The result folder: the three files (and extra ones) written where asked, consistent with each other. */
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -40,6 +40,30 @@ describe('writeResultFolder', () => {
     expect(written.summary.footprint.levels_ug_m3).toEqual(written.footprint.properties.levels_ug_m3);
     // Field from 0 to 12.3: the seven 1-2-5 levels below the peak.
     expect(written.footprint.properties.levels_ug_m3).toEqual([0.1, 0.2, 0.5, 1, 2, 5, 10]);
+  });
+
+  it('a reused folder holds only this run\'s files: an earlier run\'s picture goes, the user\'s own files stay', async () => {
+    const directory = path.join(scratch, 'reused');
+    const rose = windRoseFromHours([{ windFrom_deg: 250, windSpeed_m_s: 4, stability: 'D' }] as never);
+    await writeResultFolder(directory, scenario, makeTestRunResult(grid, { windRose: { table: rose, caption: 'series' } }));
+    // The user's own files: one with a name the runs never write, and a folder.
+    writeFileSync(path.join(directory, 'my-notes.txt'), 'keep me');
+    mkdirSync(path.join(directory, 'maps'));
+    const written = await writeResultFolder(directory, scenario, makeTestRunResult(grid));
+    expect(written.removed).toEqual(['windrose.svg']);
+    expect(existsSync(path.join(directory, 'windrose.svg'))).toBe(false);
+    expect(readdirSync(directory).sort()).toEqual(['.plumeplan-files.json', 'footprint.geojson', 'maps', 'my-notes.txt', 'receptors.csv', 'summary.json']);
+    expect(JSON.parse(readFileSync(path.join(directory, '.plumeplan-files.json'), 'utf8')).files).toEqual(['summary.json', 'receptors.csv', 'footprint.geojson']);
+    // A list naming anything outside the folder, or a user file, removes nothing of those.
+    writeFileSync(
+      path.join(directory, '.plumeplan-files.json'),
+      JSON.stringify({ format: 'plumeplan.result-files/1', files: ['../outside.txt', 'maps', 'summary.json'] }),
+    );
+    writeFileSync(path.join(scratch, 'outside.txt'), 'not ours');
+    const again = await writeResultFolder(directory, scenario, makeTestRunResult(grid));
+    expect(again.removed).toEqual([]);
+    expect(existsSync(path.join(scratch, 'outside.txt'))).toBe(true);
+    expect(existsSync(path.join(directory, 'maps'))).toBe(true);
   });
 
   it('refuses a path that is a file', async () => {
