@@ -1,0 +1,363 @@
+/**
+ * The "Conditions" panel: pollutant, weather (one steady state, an hourly CSV with a preview of what was
+ * read, or a wind-rose table), domain and solver, and the assessment's background and standards. Each
+ * group says in one line what it changes.
+ */
+import { parseWeatherCsv } from '../../scenarios/format/weatherCsv.ts';
+import { escapeHtml } from '../map/mapControls.ts';
+import type { RawScenario, ScenarioDocument } from '../state/scenarioDocument.ts';
+import { choiceField, fieldGroup, numberField, showIssues, textField } from './formKit.ts';
+
+type Obj = Record<string, unknown>;
+
+const STABILITY_CHOICES = [
+  { value: 'A', label: 'A: very unstable (strong sun, light wind)' },
+  { value: 'B', label: 'B: unstable' },
+  { value: 'C', label: 'C: slightly unstable' },
+  { value: 'D', label: 'D: neutral (overcast or windy)' },
+  { value: 'E', label: 'E: slightly stable (night, light wind)' },
+  { value: 'F', label: 'F: moderately stable (clear night, calm)' },
+];
+
+/** The steady weather a new or converted scenario starts from (neutral, 5 m/s from the west-south-west). */
+const STEADY_DEFAULT = { kind: 'steady', windSpeed_m_s: 5, windFrom_deg: 250, stability: 'D', rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10 };
+
+/** A wind-rose row as the table's text holds it. */
+const ROSE_HEADER = 'windFrom_deg,windSpeed_m_s,stability,frequency';
+
+/** Parse the wind-rose table's text into cells (checked afterwards by the schema with the rest). */
+export function parseRoseTable(text: string): { cells: Obj[]; problems: string[] } {
+  const cells: Obj[] = [];
+  const problems: string[] = [];
+  text
+    .split(/\r?\n/)
+    .map((line) => line.trim())
+    .forEach((line, n) => {
+      if (line === '' || line.startsWith('#') || line.replace(/\s/g, '') === ROSE_HEADER) return;
+      const parts = line.split(',').map((part) => part.trim());
+      if (parts.length !== 4) {
+        problems.push(`line ${n + 1}: ${JSON.stringify(line)} has ${parts.length} values; give ${ROSE_HEADER}`);
+        return;
+      }
+      const [from, speed, stability, frequency] = parts;
+      cells.push({ windFrom_deg: Number(from), windSpeed_m_s: Number(speed), stability: stability.toUpperCase(), frequency: Number(frequency) });
+    });
+  return { cells, problems };
+}
+
+export class ConditionsPanel {
+  private csvSummary = '';
+
+  constructor(private readonly element: HTMLElement, private readonly document: ScenarioDocument) {
+    document.subscribe((_doc, reason) => {
+      // Re-render on outside changes (undo, open); a field's own change keeps focus where it is.
+      if (!reason.startsWith('set ')) this.render();
+      else this.showIssues();
+    });
+    this.render();
+  }
+
+  private set(label: string, change: (draft: RawScenario) => void): void {
+    this.document.edit(`set ${label}`, change);
+  }
+
+  render(): void {
+    const view = this.document.scenario;
+    this.element.replaceChildren(
+      this.pollutantGroup(view),
+      this.weatherGroup(view),
+      this.siteAndDomainGroup(view),
+      this.solverGroup(view),
+      this.assessmentGroup(view),
+    );
+    this.showIssues();
+  }
+
+  private showIssues(): void {
+    const outcome = this.document.validation;
+    const issues = outcome.ok ? [] : outcome.issues.filter((i) => !/^(sources|receptors)/.test(i.path));
+    const unplaced = showIssues(this.element, issues);
+    this.element.querySelector('.issues')?.remove();
+    if (unplaced.length > 0) {
+      const box = document.createElement('div');
+      box.className = 'issues';
+      box.setAttribute('role', 'alert');
+      box.innerHTML = '<h3>To fix before a run</h3><ul>' + unplaced.map((i) => `<li><code>${escapeHtml(i.path)}</code>: ${escapeHtml(i.message)}</li>`).join('') + '</ul>';
+      this.element.prepend(box);
+    }
+  }
+
+  private pollutantGroup(view: RawScenario): HTMLElement {
+    const pollutant = (view.pollutant as Obj | undefined) ?? {};
+    const washout = pollutant.washout as Obj | null | undefined;
+    const setP = (field: string) => (value: unknown) =>
+      this.set(`pollutant ${field}`, (draft) => {
+        const target = ((draft.pollutant as Obj) ??= {});
+        target[field] = value;
+      });
+    const setWashout = (field: 'a_per_s' | 'b') => (value: number | null) =>
+      this.set(`washout ${field}`, (draft) => {
+        const target = ((draft.pollutant as Obj) ??= {});
+        if (value === null) {
+          target.washout = null;
+          return;
+        }
+        const current = (target.washout as Obj | null) ?? { a_per_s: 0, b: 0.8 };
+        target.washout = { ...current, [field]: value };
+      });
+    return fieldGroup('Pollutant', 'What is emitted and how it is lost on the way: decay shortens the footprint downwind, washout matters only in rain, deposition thins a low plume.', [
+      textField({ issuePath: 'pollutant.name', label: 'Name', value: pollutant.name, hint: 'shown in reports', onChange: setP('name') }),
+      numberField({ schemaPath: ['pollutant', 'halfLife_h'], issuePath: 'pollutant.halfLife_h', label: 'Half-life', value: pollutant.halfLife_h, nullable: true, emptyMeaning: 'conserved (no decay)', onChange: setP('halfLife_h') }),
+      numberField({ schemaPath: ['pollutant', 'washout', 'a_per_s'], issuePath: 'pollutant.washout.a_per_s', label: 'Washout coefficient a', value: washout?.a_per_s, nullable: true, emptyMeaning: 'no washout', onChange: setWashout('a_per_s') }),
+      numberField({ schemaPath: ['pollutant', 'washout', 'b'], issuePath: 'pollutant.washout.b', label: 'Washout exponent b', value: washout?.b, nullable: true, emptyMeaning: 'no washout', onChange: setWashout('b') }),
+      numberField({ schemaPath: ['pollutant', 'depositionVelocity_m_s'], issuePath: 'pollutant.depositionVelocity_m_s', label: 'Dry deposition velocity', value: pollutant.depositionVelocity_m_s ?? 0, onChange: setP('depositionVelocity_m_s') }),
+    ]);
+  }
+
+  private weatherGroup(view: RawScenario): HTMLElement {
+    const weather = (view.weather as Obj | undefined) ?? { kind: 'steady' };
+    const kind = String(weather.kind ?? 'steady');
+    const children: HTMLElement[] = [
+      choiceField({
+        issuePath: 'weather.kind',
+        label: 'Kind of weather',
+        value: kind,
+        choices: [
+          { value: 'steady', label: 'One steady state' },
+          { value: 'hourly', label: 'Hourly series (CSV upload)' },
+          { value: 'windRose', label: 'Wind rose table' },
+        ],
+        hint: 'one state gives one hour\'s picture; a series or a rose gives means and the statistics standards ask for',
+        onChange: (value) => this.set('weather kind', (draft) => {
+          if (value === 'steady') draft.weather = { ...STEADY_DEFAULT };
+          else if (value === 'hourly') draft.weather = { kind: 'hourly', hours: [{ time: '2026-01-01T00:00Z', windSpeed_m_s: 5, windFrom_deg: 250, stability: 'D' }] };
+          else draft.weather = { kind: 'windRose', sectorWidth_deg: 30, cells: [{ windFrom_deg: 240, windSpeed_m_s: 5, stability: 'D', frequency: 1 }], rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10 };
+          this.render();
+        }),
+      }),
+    ];
+    const setW = (field: string) => (value: unknown) =>
+      this.set(`weather ${field}`, (draft) => {
+        const target = draft.weather as Obj;
+        if (value === null) delete target[field];
+        else target[field] = value;
+      });
+    const w = (field: string, label: string, extra: Partial<Parameters<typeof numberField>[0]> = {}) =>
+      numberField({ schemaPath: ['weather', kind, field], issuePath: `weather.${field}`, label, value: weather[field], onChange: setW(field), ...extra });
+    if (kind === 'steady') {
+      children.push(
+        w('windSpeed_m_s', 'Wind speed'),
+        w('windFrom_deg', 'Wind from'),
+        choiceField({ issuePath: 'weather.stability', label: 'Stability class', value: String(weather.stability ?? 'D'), choices: STABILITY_CHOICES, hint: 'Pasquill class: how strongly the air mixes vertically', onChange: setW('stability') }),
+        w('mixingHeight_m', 'Mixing height', { nullable: true, emptyMeaning: 'screening default for the class' }),
+        w('rain_mm_h', 'Rain rate'),
+        w('airTemperature_K', 'Air temperature'),
+        w('anemometerHeight_m', 'Anemometer height'),
+      );
+    } else if (kind === 'hourly') {
+      children.push(this.csvUpload(weather));
+    } else {
+      children.push(w('sectorWidth_deg', 'Sector width'), this.roseTable(weather), w('rain_mm_h', 'Rain rate'), w('airTemperature_K', 'Air temperature'), w('anemometerHeight_m', 'Anemometer height'));
+    }
+    return fieldGroup('Weather', 'Sets where the plume goes and how fast it spreads; the preview follows one state of it.', children);
+  }
+
+  private csvUpload(weather: Obj): HTMLElement {
+    const wrapper = document.createElement('div');
+    wrapper.className = 'field';
+    wrapper.dataset.issuePath = 'weather.hours';
+    const hours = (weather.hours as Obj[] | undefined) ?? [];
+    wrapper.innerHTML =
+      '<label for="weather-csv">Hourly weather CSV</label>' +
+      '<input id="weather-csv" type="file" accept=".csv,text/csv" aria-describedby="weather-csv-hint weather-csv-error" />' +
+      '<div id="weather-csv-hint" class="hint">columns time, windSpeed_m_s, windFrom_deg and optionally stability, mixingHeight_m, rain_mm_h, airTemperature_K, anemometerHeight_m, cloudCover_oktas; each time marks the start of its hour</div>' +
+      '<div id="weather-csv-error" class="error" role="alert"></div>' +
+      `<div class="csv-preview" data-testid="csv-preview">${this.csvSummary || hoursSummary(hours)}</div>`;
+    const input = wrapper.querySelector('input') as HTMLInputElement;
+    input.addEventListener('change', async () => {
+      const file = input.files?.[0];
+      if (!file) return;
+      const text = await file.text();
+      const outcome = parseWeatherCsv(text, file.name);
+      const errorSlot = wrapper.querySelector('.error') as HTMLElement;
+      if (!outcome.ok) {
+        errorSlot.textContent = outcome.issues.slice(0, 5).map((i) => `${i.path}: ${i.message}`).join('\n') + (outcome.issues.length > 5 ? `\n… and ${outcome.issues.length - 5} more` : '');
+        return;
+      }
+      errorSlot.textContent = '';
+      this.csvSummary = `<p>Read ${outcome.hours.length} hours from <b>${escapeHtml(file.name)}</b>.</p>` + hoursSummary(outcome.hours as unknown as Obj[]);
+      this.set('weather hourly series', (draft) => {
+        draft.weather = { kind: 'hourly', hours: outcome.hours };
+      });
+      this.render();
+    });
+    return wrapper;
+  }
+
+  private roseTable(weather: Obj): HTMLElement {
+    const wrapper = document.createElement('div');
+    wrapper.className = 'field';
+    wrapper.dataset.issuePath = 'weather.cells';
+    const cells = (weather.cells as Obj[] | undefined) ?? [];
+    const text = [ROSE_HEADER, ...cells.map((c) => `${c.windFrom_deg},${c.windSpeed_m_s},${c.stability},${c.frequency}`)].join('\n');
+    wrapper.innerHTML =
+      '<label for="rose-table">Wind rose cells</label>' +
+      '<textarea id="rose-table" rows="8" spellcheck="false" aria-describedby="rose-hint rose-error"></textarea>' +
+      `<div id="rose-hint" class="hint">one row per cell: ${ROSE_HEADER} (frequency as a fraction; all rows sum to 1); the preview shows the most frequent cell</div>` +
+      '<div id="rose-error" class="error" role="alert"></div>';
+    const area = wrapper.querySelector('textarea') as HTMLTextAreaElement;
+    area.value = text;
+    area.addEventListener('change', () => {
+      const { cells: parsed, problems } = parseRoseTable(area.value);
+      (wrapper.querySelector('.error') as HTMLElement).textContent = problems.join('\n');
+      if (problems.length === 0) this.set('wind rose cells', (draft) => void ((draft.weather as Obj).cells = parsed));
+    });
+    return wrapper;
+  }
+
+  private siteAndDomainGroup(view: RawScenario): HTMLElement {
+    const site = (view.site as Obj | undefined) ?? {};
+    const domain = view.domain as Obj | undefined;
+    const children: HTMLElement[] = [
+      choiceField({
+        issuePath: 'site.landUse',
+        label: 'Land use around the site',
+        value: String(site.landUse ?? 'rural'),
+        choices: [
+          { value: 'rural', label: 'Rural' },
+          { value: 'urban', label: 'Urban' },
+        ],
+        hint: 'urban roughness mixes plumes faster near the ground',
+        onChange: (value) => this.set('land use', (draft) => void ((draft.site as Obj).landUse = value)),
+      }),
+      choiceField({
+        issuePath: 'domain',
+        label: 'Domain',
+        value: domain === undefined ? 'derived' : 'given',
+        choices: [
+          { value: 'derived', label: 'Derived from the sources and receptors' },
+          { value: 'given', label: 'Given below' },
+        ],
+        hint: 'the square of ground the grid covers, centred on the site',
+        onChange: (value) => {
+          this.set('domain choice', (draft) => {
+            if (value === 'derived') delete draft.domain;
+            else draft.domain = { halfWidth_m: 5000, spacing_m: 50, height_m: 1000, layers: 25 };
+          });
+          this.render();
+        },
+      }),
+    ];
+    if (domain !== undefined) {
+      const setD = (field: string) => (value: unknown) => this.set(`domain ${field}`, (draft) => void ((draft.domain as Obj)[field] = value));
+      for (const [field, label] of [
+        ['halfWidth_m', 'Half-width'],
+        ['spacing_m', 'Cell size'],
+        ['height_m', 'Grid top'],
+        ['layers', 'Vertical layers'],
+      ] as const) {
+        children.push(numberField({ schemaPath: ['domain', field], issuePath: `domain.${field}`, label, value: domain[field], onChange: setD(field) }));
+      }
+    }
+    return fieldGroup('Site and domain', 'Finer cells resolve the near field better and cost more time and memory in a grid run.', children);
+  }
+
+  private solverGroup(view: RawScenario): HTMLElement {
+    const solver = (view.solver as Obj | undefined) ?? {};
+    const dispersion = (view.dispersion as Obj | undefined) ?? { kind: 'stability', curves: 'briggs' };
+    return fieldGroup('Solver', 'How the run computes the footprint; the preview is always the quick Gaussian plume.', [
+      choiceField({
+        issuePath: 'solver.mode',
+        label: 'Run mode',
+        value: String(solver.mode ?? 'grid'),
+        choices: [
+          { value: 'grid', label: 'Grid: advection-diffusion on the local grid' },
+          { value: 'gaussian', label: 'Gaussian plume (quick reference)' },
+        ],
+        hint: 'the grid solver follows the wind profile and the mixing lid cell by cell',
+        onChange: (value) => this.set('run mode', (draft) => void ((draft.solver ??= {}) as Obj, ((draft.solver as Obj).mode = value))),
+      }),
+      choiceField({
+        issuePath: 'dispersion.curves',
+        label: 'Dispersion curves (Gaussian)',
+        value: String(dispersion.curves ?? 'briggs'),
+        choices: [
+          { value: 'briggs', label: 'Briggs (rural or urban by land use)' },
+          { value: 'pasquill-gifford', label: 'Pasquill-Gifford' },
+        ],
+        hint: 'how plume width grows with distance in the Gaussian preview and mode',
+        onChange: (value) => this.set('dispersion curves', (draft) => void (draft.dispersion = { kind: 'stability', curves: value })),
+      }),
+      choiceField({
+        issuePath: 'windProfile',
+        label: 'Wind profile',
+        value: String(view.windProfile ?? 'powerLaw'),
+        choices: [
+          { value: 'powerLaw', label: 'Power law (stronger wind aloft)' },
+          { value: 'uniform', label: 'Uniform with height' },
+        ],
+        hint: 'the wind a tall stack\'s plume travels in',
+        onChange: (value) => this.set('wind profile', (draft) => void (draft.windProfile = value)),
+      }),
+    ]);
+  }
+
+  private assessmentGroup(view: RawScenario): HTMLElement {
+    const assessment = view.assessment as Obj | undefined;
+    const standards = (assessment?.standards as Obj[] | undefined) ?? [];
+    const children: HTMLElement[] = [];
+    if (assessment === undefined) {
+      const add = document.createElement('button');
+      add.type = 'button';
+      add.textContent = 'Add background and standards';
+      add.addEventListener('click', () => {
+        this.set('assessment', (draft) => void (draft.assessment = { background_ug_m3: 0, standards: [] }));
+        this.render();
+      });
+      children.push(add);
+    } else {
+      children.push(
+        numberField({
+          schemaPath: ['assessment', 'background_ug_m3'],
+          issuePath: 'assessment.background_ug_m3',
+          label: 'Background',
+          value: assessment.background_ug_m3,
+          onChange: (value) => this.set('background', (draft) => void ((draft.assessment as Obj).background_ug_m3 = value)),
+        }),
+      );
+      standards.forEach((standard, index) => {
+        const setS = (field: string) => (value: unknown) => this.set(`standard ${field}`, (draft) => void (((draft.assessment as Obj).standards as Obj[])[index][field] = value));
+        const base = `assessment.standards[${index}]`;
+        const box = document.createElement('div');
+        box.className = 'standard';
+        box.append(
+          textField({ issuePath: `${base}.name`, label: `Standard ${index + 1}: name`, value: standard.name, onChange: setS('name') }),
+          numberField({ schemaPath: ['assessment', 'standards', 'limit_ug_m3'], issuePath: `${base}.limit_ug_m3`, label: 'Limit', value: standard.limit_ug_m3, onChange: setS('limit_ug_m3') }),
+          numberField({ schemaPath: ['assessment', 'standards', 'averaging_h'], issuePath: `${base}.averaging_h`, label: 'Averaging period', value: standard.averaging_h, onChange: setS('averaging_h') }),
+          numberField({ schemaPath: ['assessment', 'standards', 'allowedExceedances'], issuePath: `${base}.allowedExceedances`, label: 'Allowed exceedances a year', value: standard.allowedExceedances, step: '1', onChange: setS('allowedExceedances') }),
+        );
+        children.push(box);
+      });
+      const add = document.createElement('button');
+      add.type = 'button';
+      add.textContent = 'Add a standard';
+      add.addEventListener('click', () => {
+        this.set('new standard', (draft) => void ((draft.assessment as Obj).standards as Obj[]).push({ name: `Standard ${standards.length + 1}`, limit_ug_m3: 40, averaging_h: 8760, allowedExceedances: 0 }));
+        this.render();
+      });
+      children.push(add);
+    }
+    return fieldGroup('Background and standards', 'The process contribution is added to the background and compared with each standard\'s limit.', children);
+  }
+}
+
+function hoursSummary(hours: Obj[]): string {
+  if (hours.length === 0) return '<p class="muted">No hours yet.</p>';
+  const rows = hours.slice(0, 4);
+  return (
+    `<p>${hours.length} hours, ${escapeHtml(String(hours[0].time))} to ${escapeHtml(String(hours[hours.length - 1].time))}.</p>` +
+    '<table class="mini"><caption class="visually-hidden">First hours read</caption><thead><tr><th scope="col">time</th><th scope="col">speed [m/s]</th><th scope="col">from [°]</th><th scope="col">class</th></tr></thead><tbody>' +
+    rows.map((h) => `<tr><td>${escapeHtml(String(h.time))}</td><td>${h.windSpeed_m_s}</td><td>${h.windFrom_deg}</td><td>${escapeHtml(String(h.stability ?? '(derived)'))}</td></tr>`).join('') +
+    '</tbody></table>'
+  );
+}

@@ -1,0 +1,393 @@
+/**
+ * The results column: the screening caution (always on show), the preview's status, the grid run with
+ * its progress bar, time left and cancel, the legend, the receptor table with each figure's share of the
+ * standards, the ground area inside each isopleth, and the run's files to download. Every section keeps
+ * its place from the start, so nothing jumps when results arrive.
+ */
+import { SCREENING_CAUTION } from '../../server/writers/caution.ts';
+import { formatConcentration } from '../colour/legendLevels.ts';
+import { decodeGroundField, areasAtOrAbove, type GroundField } from '../field/groundField.ts';
+import { escapeHtml, formatShare } from '../map/mapControls.ts';
+import type { ScenarioDocument } from '../state/scenarioDocument.ts';
+import { ApiClient, ApiError, FINAL_RUN_STATUSES, type RunRecord, type RunUpdate } from '../api/client.ts';
+import { renderLegend, type LegendContent } from './legend.ts';
+import type { ViewSettings } from './viewPanel.ts';
+
+export interface ResultsPanelHooks {
+  showField(field: GroundField | null): void;
+  currentSettings(): ViewSettings;
+}
+
+interface SummaryReceptor {
+  id: string;
+  name: string;
+  [figure: string]: unknown;
+}
+
+interface RunSummary {
+  receptors?: SummaryReceptor[];
+  peak?: { concentration_ug_m3?: number; x_m?: number; y_m?: number };
+  notes?: string[];
+  weatherKind?: string;
+}
+
+/** Labels of the result files the server offers. */
+const FILE_LABELS: Record<string, string> = {
+  'summary.json': 'Summary (JSON)',
+  'receptors.csv': 'Receptor figures (CSV)',
+  'footprint.geojson': 'Footprint isopleths (GeoJSON)',
+  'windrose.svg': 'Wind rose (SVG)',
+  'ground-field.bin': 'Ground field (binary float32)',
+};
+
+export class ResultsPanel {
+  private readonly root: HTMLElement;
+  private previewReceptors: number[] | null = null;
+  private runReceptors: { columns: string[]; rows: SummaryReceptor[] } | null = null;
+  private run: RunRecord | null = null;
+  private stopFollowing: (() => void) | null = null;
+  private runStarted_ms = 0;
+  private serverAvailable = false;
+  /** true while the map shows the preview (false once a run's field is on show) */
+  showsPreview = true;
+  private runField: GroundField | null = null;
+  /** the time from pressing Run to the overlay drawn [ms], for the bench */
+  lastRunToOverlay_ms: number | null = null;
+
+  constructor(
+    element: HTMLElement,
+    private readonly doc: ScenarioDocument,
+    private readonly api: ApiClient,
+    private readonly hooks: ResultsPanelHooks,
+  ) {
+    this.root = element;
+    element.innerHTML = `
+      <aside class="caution" role="note" aria-label="Screening caution" data-testid="caution"><strong>Screening estimate.</strong> ${escapeHtml(SCREENING_CAUTION.replace(/^Screening estimate only\.\s*/, ''))}</aside>
+      <section class="result-block" aria-labelledby="run-heading">
+        <h2 id="run-heading">Run</h2>
+        <p class="preview-status" data-testid="preview-status" aria-live="polite"></p>
+        <div class="run-controls">
+          <button type="button" class="primary" data-action="run" data-testid="run-button">Run the scenario</button>
+          <button type="button" data-action="cancel" data-testid="cancel-button" disabled>Cancel</button>
+          <button type="button" data-action="show-preview" disabled>Show preview</button>
+        </div>
+        <div class="progress-wrap">
+          <progress max="1" value="0" data-testid="run-progress" aria-label="Run progress"></progress>
+          <div class="run-status" data-testid="run-status" role="status" aria-live="polite">No run yet.</div>
+        </div>
+      </section>
+      <section class="result-block" aria-labelledby="legend-heading">
+        <h2 id="legend-heading">Legend</h2>
+        <div class="legend" data-testid="legend"></div>
+      </section>
+      <section class="result-block" aria-labelledby="receptors-heading">
+        <h2 id="receptors-heading">Receptors</h2>
+        <label class="inline-field">Compare with <select data-testid="standard-choice" aria-label="Standard to compare with"></select></label>
+        <div class="receptor-table" data-testid="receptor-table"></div>
+      </section>
+      <section class="result-block" aria-labelledby="areas-heading">
+        <h2 id="areas-heading">Footprint areas</h2>
+        <div class="areas" data-testid="areas"></div>
+      </section>
+      <section class="result-block" aria-labelledby="files-heading">
+        <h2 id="files-heading">Downloads</h2>
+        <div class="downloads" data-testid="downloads"><p class="muted">The files of a finished run appear here.</p></div>
+      </section>`;
+    this.q('[data-action="run"]').addEventListener('click', () => void this.startRun());
+    this.q('[data-action="cancel"]').addEventListener('click', () => void this.cancelRun());
+    this.q('[data-action="show-preview"]').addEventListener('click', () => this.showPreviewAgain());
+    this.q<HTMLSelectElement>('[data-testid="standard-choice"]').addEventListener('change', () => this.refreshVerdicts());
+    doc.subscribe(() => this.refreshStandards());
+    this.refreshStandards();
+    renderLegend(this.q('[data-testid="legend"]'), null);
+    this.setAreas(null, []);
+  }
+
+  private q<T extends HTMLElement = HTMLElement>(selector: string): T {
+    return this.root.querySelector(selector) as T;
+  }
+
+  /** The standard chosen for shares, if any. */
+  get chosenStandard(): { name: string; limit_ug_m3: number } | null {
+    const outcome = this.doc.validation;
+    const standards = outcome.ok ? (outcome.scenario.assessment?.standards ?? []) : [];
+    const name = this.q<HTMLSelectElement>('[data-testid="standard-choice"]').value;
+    return standards.find((s) => s.name === name) ?? standards[0] ?? null;
+  }
+
+  private refreshStandards(): void {
+    const select = this.q<HTMLSelectElement>('[data-testid="standard-choice"]');
+    const outcome = this.doc.validation;
+    const standards = outcome.ok ? (outcome.scenario.assessment?.standards ?? []) : [];
+    const before = select.value;
+    select.innerHTML =
+      standards.length === 0
+        ? '<option value="">(no standards in this scenario)</option>'
+        : standards.map((s) => `<option value="${escapeHtml(s.name)}">${escapeHtml(s.name)} (${formatConcentration(s.limit_ug_m3)} µg/m³)</option>`).join('');
+    if (standards.some((s) => s.name === before)) select.value = before;
+    this.refreshVerdicts();
+  }
+
+  /** Ask the server whether it is there; without it, the page still edits and previews. */
+  async connect(): Promise<void> {
+    try {
+      await this.api.listScenarios(1, 0);
+      this.serverAvailable = true;
+    } catch {
+      this.serverAvailable = false;
+      this.setRunStatus('The server is not reachable: edits are kept in this browser and the preview works; runs and saving need the server.');
+      (this.q('[data-action="run"]') as HTMLButtonElement).disabled = true;
+    }
+  }
+
+  setPreviewStatus(text: string, problem: boolean): void {
+    const element = this.q('[data-testid="preview-status"]');
+    element.textContent = text;
+    element.classList.toggle('problem', problem);
+  }
+
+  setPreviewReceptors(values: number[]): void {
+    this.previewReceptors = values;
+    if (this.showsPreview) this.refreshVerdicts();
+  }
+
+  setLegend(content: LegendContent | null): void {
+    renderLegend(this.q('[data-testid="legend"]'), content);
+  }
+
+  setAreas(field: GroundField | null, levels: readonly number[]): void {
+    const element = this.q('[data-testid="areas"]');
+    if (field === null || levels.length === 0) {
+      element.innerHTML = '<p class="muted">Ground area at or above each isopleth level, once a field is on the map.</p>';
+      return;
+    }
+    const areas = areasAtOrAbove(field, levels);
+    element.innerHTML =
+      `<table class="mini"><caption>Ground at or above each level (${escapeHtml(field.origin)}; column areas, ${field.grid.spacing_m} m cells)</caption>` +
+      '<thead><tr><th scope="col">level [µg/m³]</th><th scope="col">area [ha]</th></tr></thead><tbody>' +
+      levels.map((level, k) => `<tr><td>${formatConcentration(level)}</td><td>${formatArea_ha(areas[k])}</td></tr>`).join('') +
+      '</tbody></table>';
+  }
+
+  private setRunStatus(text: string): void {
+    this.q('[data-testid="run-status"]').textContent = text;
+  }
+
+  /** Redraw the receptor table (preview values or the run's figures) with shares of the chosen standard. */
+  refreshVerdicts(): void {
+    const element = this.q('[data-testid="receptor-table"]');
+    const outcome = this.doc.validation;
+    const standard = this.chosenStandard;
+    const background = outcome.ok ? (outcome.scenario.assessment?.background_ug_m3 ?? null) : null;
+    if (!this.showsPreview && this.runReceptors !== null) {
+      const { columns, rows } = this.runReceptors;
+      element.innerHTML =
+        `<table class="results"><caption>Grid run figures [µg/m³], process contribution at receptor height</caption><thead><tr><th scope="col">receptor</th>` +
+        columns.map((c) => `<th scope="col">${escapeHtml(c.replace(/_ug_m3$/, ''))}</th>`).join('') +
+        (standard ? `<th scope="col">share of ${escapeHtml(standard.name)}</th>` : '') +
+        '</tr></thead><tbody>' +
+        rows
+          .map((row) => {
+            const first = row[columns[0]] as number;
+            return (
+              `<tr><th scope="row">${escapeHtml(String(row.name ?? row.id))}</th>` +
+              columns.map((c) => `<td>${typeof row[c] === 'number' ? formatConcentration(row[c] as number) : escapeHtml(String(row[c] ?? ''))}</td>`).join('') +
+              (standard ? `<td>${shareCell(first, background, standard.limit_ug_m3)}</td>` : '') +
+              '</tr>'
+            );
+          })
+          .join('') +
+        '</tbody></table>' +
+        (background !== null ? `<p class="hint">Share = (process contribution + background ${formatConcentration(background)} µg/m³) / limit.</p>` : '');
+      return;
+    }
+    const receptors = outcome.ok ? outcome.scenario.receptors : [];
+    if (receptors.length === 0) {
+      element.innerHTML = '<p class="muted">No receptors: add one with the map tools.</p>';
+      return;
+    }
+    const values = this.previewReceptors;
+    element.innerHTML =
+      '<table class="results"><caption>Gaussian preview [µg/m³], one weather state, process contribution</caption><thead><tr><th scope="col">receptor</th><th scope="col">concentration</th>' +
+      (standard ? `<th scope="col">share of ${escapeHtml(standard.name)}</th>` : '') +
+      '</tr></thead><tbody>' +
+      receptors
+        .map((r, n) => {
+          const value = values?.[n];
+          return (
+            `<tr><th scope="row">${escapeHtml(r.name)}</th><td>${value === undefined ? '…' : formatConcentration(value)}</td>` +
+            (standard ? `<td>${value === undefined ? '' : shareCell(value, background, standard.limit_ug_m3)}</td>` : '') +
+            '</tr>'
+          );
+        })
+        .join('') +
+      '</tbody></table>' +
+      (background !== null ? `<p class="hint">Share = (process contribution + background ${formatConcentration(background)} µg/m³) / limit.</p>` : '');
+  }
+
+  /** Save the scenario: a new scenario, or a new revision of the one it came from. */
+  async save(): Promise<boolean> {
+    const status = document.getElementById('save-status');
+    const outcome = this.doc.validation;
+    if (!outcome.ok) {
+      if (status) status.textContent = `Not saved: ${outcome.issues.length} field${outcome.issues.length === 1 ? '' : 's'} to fix (marked in the left panel)`;
+      return false;
+    }
+    try {
+      const record = this.doc.saved
+        ? await this.api.updateScenario(this.doc.saved.id, this.doc.scenario, this.doc.saved.revision)
+        : await this.api.createScenario(this.doc.scenario);
+      this.doc.markSaved({ id: record.id, revision: record.revision });
+      return true;
+    } catch (error) {
+      if (status) {
+        status.textContent =
+          error instanceof ApiError && error.status === 409
+            ? 'Not saved: someone saved a newer revision meanwhile; open it from Scenarios (your edits stay here)'
+            : `Not saved: ${error instanceof Error ? error.message : String(error)}`;
+      }
+      return false;
+    }
+  }
+
+  private async startRun(): Promise<void> {
+    this.runStarted_ms = performance.now();
+    this.lastRunToOverlay_ms = null;
+    if (this.doc.dirty || this.doc.saved === null) {
+      this.setRunStatus('Saving before the run…');
+      if (!(await this.save())) {
+        this.setRunStatus('The run needs a saved, valid scenario; see the message at the top.');
+        return;
+      }
+    }
+    const saved = this.doc.saved;
+    if (saved === null) return;
+    this.stopFollowing?.();
+    try {
+      const accepted = await this.api.startRun(saved.id, saved.revision);
+      this.setRunning(true);
+      this.setRunStatus(accepted.reused ? 'Same scenario run before: using its results.' : 'Queued…');
+      this.stopFollowing = this.api.followRun(accepted.id, (update) => void this.onUpdate(update));
+    } catch (error) {
+      this.setRunStatus(`The run was refused: ${error instanceof Error ? error.message : String(error)}`);
+    }
+  }
+
+  private setRunning(running: boolean): void {
+    (this.q('[data-action="run"]') as HTMLButtonElement).disabled = running;
+    (this.q('[data-action="cancel"]') as HTMLButtonElement).disabled = !running;
+    this.root.dataset.running = String(running);
+  }
+
+  private currentRunId: string | null = null;
+
+  private async onUpdate(update: RunUpdate): Promise<void> {
+    this.currentRunId = update.id;
+    const progress = this.q<HTMLProgressElement>('[data-testid="run-progress"]');
+    progress.value = update.progress;
+    if (!FINAL_RUN_STATUSES.includes(update.status)) {
+      const elapsed_s = (performance.now() - this.runStarted_ms) / 1000;
+      const left = update.progress > 0.02 ? ` about ${formatDuration((elapsed_s / update.progress) * (1 - update.progress))} left` : '';
+      this.setRunStatus(`${update.status === 'queued' ? 'Queued' : 'Running'}: ${Math.round(update.progress * 100)} %${left}${update.message ? `, ${update.message}` : ''}`);
+      return;
+    }
+    this.setRunning(false);
+    if (update.status !== 'done') {
+      this.setRunStatus(update.status === 'cancelled' ? 'Run cancelled; nothing was kept.' : `Run ${update.status}: ${update.error?.error ?? update.message}`);
+      return;
+    }
+    this.setRunStatus('Done: loading the results…');
+    await this.loadRun(update.id);
+  }
+
+  /** Show a finished run's field, figures and files. */
+  async loadRun(runId: string): Promise<void> {
+    const run = await this.api.getRun(runId);
+    this.run = run;
+    const fieldFile = run.results.find((file) => file.name === 'ground-field.bin');
+    const summaryFile = run.results.find((file) => file.name === 'summary.json');
+    if (fieldFile) {
+      const decoded = decodeGroundField(await this.api.resultBytes(fieldFile));
+      this.runField = {
+        grid: decoded.grid,
+        values: decoded.values,
+        statistic: decoded.header.statistic === 'mean' ? 'mean over the weather' : 'concentration, one weather state',
+        origin: `${run.mode} run, revision ${run.revision}`,
+        height_m: decoded.header.height_m ?? 1.5,
+      };
+      this.showsPreview = false;
+      (this.q('[data-action="show-preview"]') as HTMLButtonElement).disabled = false;
+      this.hooks.showField(this.runField);
+      this.lastRunToOverlay_ms = performance.now() - this.runStarted_ms;
+    }
+    if (summaryFile) {
+      const summary = await this.api.resultJson<RunSummary>(summaryFile);
+      const rows = summary.receptors ?? [];
+      const columns = rows.length > 0 ? Object.keys(rows[0]).filter((key) => /_ug_m3$/.test(key)) : [];
+      this.runReceptors = { columns, rows };
+    }
+    this.refreshVerdicts();
+    this.renderDownloads(run);
+    this.setRunStatus(`Done: ${run.mode} run of revision ${run.revision}${run.startedAt && run.finishedAt ? `, ${formatDuration((Date.parse(run.finishedAt) - Date.parse(run.startedAt)) / 1000)}` : ''}.`);
+  }
+
+  private renderDownloads(run: RunRecord): void {
+    const element = this.q('[data-testid="downloads"]');
+    element.innerHTML =
+      '<ul class="files">' +
+      run.results
+        .map((file) => `<li><a href="${escapeHtml(file.url)}" download="${escapeHtml(file.name)}" data-testid="download-${escapeHtml(file.name)}">${escapeHtml(FILE_LABELS[file.name] ?? file.name)}</a> <span class="muted">${formatBytes(file.bytes)}</span></li>`)
+        .join('') +
+      '</ul><p class="hint">Each file carries the screening caution (the CSV travels with the summary\'s).</p>';
+  }
+
+  private async cancelRun(): Promise<void> {
+    if (this.currentRunId === null) return;
+    try {
+      await this.api.cancelRun(this.currentRunId);
+      this.setRunStatus('Cancelling…');
+    } catch (error) {
+      this.setRunStatus(`Cancel refused: ${error instanceof Error ? error.message : String(error)}`);
+    }
+  }
+
+  private showPreviewAgain(): void {
+    this.showsPreview = true;
+    (this.q('[data-action="show-preview"]') as HTMLButtonElement).disabled = true;
+    this.refreshVerdicts();
+    this.hooks.showField(null);
+    document.dispatchEvent(new CustomEvent('plumeplan:preview-wanted'));
+  }
+
+  /** Called when the scenario is edited after a run: the run's figures no longer describe it. */
+  scenarioEdited(): void {
+    if (!this.showsPreview) this.showPreviewAgain();
+  }
+
+  get isServerAvailable(): boolean {
+    return this.serverAvailable;
+  }
+}
+
+function shareCell(value_ug_m3: number, background_ug_m3: number | null, limit_ug_m3: number): string {
+  const total = value_ug_m3 + (background_ug_m3 ?? 0);
+  return formatShare(total / limit_ug_m3);
+}
+
+function formatArea_ha(area_m2: number): string {
+  const ha = area_m2 / 10_000;
+  return ha >= 100 ? String(Math.round(ha)) : String(Number(ha.toPrecision(2)));
+}
+
+function formatDuration(seconds: number): string {
+  if (!Number.isFinite(seconds)) return '–';
+  if (seconds < 1) return 'under a second';
+  if (seconds < 90) return `${Math.round(seconds)} s`;
+  return `${Math.round(seconds / 60)} min`;
+}
+
+function formatBytes(bytes: number): string {
+  if (bytes < 1024) return `${bytes} B`;
+  if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} kB`;
+  return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+}
