@@ -9,9 +9,10 @@ import './styles.css';
 import L from 'leaflet';
 import demoScenario from '../scenarios/merrowdene-heat-plant/scenario.json';
 import { parseScenario } from '../scenarios/format/schema.ts';
-import { ColourScale } from './colour/colourScale.ts';
+import { ColourScale, DifferenceScale } from './colour/colourScale.ts';
 import { defaultColourRange, isoplethLevels } from './colour/legendLevels.ts';
 import { EditLayer, type Tool } from './editing/editLayer.ts';
+import { largestDifference } from './field/compare.ts';
 import { valueAt, type GroundField } from './field/groundField.ts';
 import { ConditionsPanel } from './forms/conditionsPanel.ts';
 import { ObjectPanel } from './forms/objectPanel.ts';
@@ -84,8 +85,26 @@ async function start(): Promise<void> {
   let shown: GroundField | null = null;
   const results = new ResultsPanel(byId('results-panel'), doc, api, {
     showField: (field) => drawField(field),
+    showDifference: (field) => drawDifference(field),
     currentSettings: () => settings,
   });
+
+  function drawDifference(field: GroundField): void {
+    shown = field;
+    const largest = largestDifference(field);
+    isopleths.clear();
+    if (largest > 0) {
+      const scale = new DifferenceScale(largest, largest * 1e-3);
+      overlay.show(field, { scale, opacity: settings.opacity });
+      results.setLegend({ scale, statistic: field.statistic, origin: field.origin, height_m: field.height_m, isopleths_ug_m3: [] });
+    } else {
+      overlay.clear();
+      results.setLegend(null);
+    }
+    results.setAreas(null, []);
+    readout.setProbe({ valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null), label: 'A − B', standard: null });
+    window.dispatchEvent(new CustomEvent(FIELD_DRAWN_EVENT, { detail: { origin: field.origin } }));
+  }
 
   function drawField(field: GroundField | null): void {
     shown = field;

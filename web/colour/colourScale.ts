@@ -58,13 +58,73 @@ const CONTROL_RGB: readonly Rgb[] = RAMP_CONTROL_POINTS.map(hexToRgb);
  * @example rampColour(0) // [68, 1, 84], dark violet; rampColour(1) // [253, 231, 37], pale yellow
  */
 export function rampColour(t: number): Rgb {
+  return interpolate(CONTROL_RGB, t);
+}
+
+/**
+ * The diverging ramp of a difference overlay (scenario A minus scenario B): ColorBrewer's PuOr with
+ * eleven classes (Brewer and Harrower, colorbrewer2.org, marked there as colour-blind safe; hex values
+ * from memory), orange-brown where A is higher, purple where B is higher, near-white around zero. It runs
+ * from purple (t = 0, B much higher) through white (t = 0.5) to brown (t = 1, A much higher).
+ */
+export const DIVERGING_CONTROL_POINTS: readonly string[] = [
+  '#2d004b',
+  '#542788',
+  '#8073ac',
+  '#b2abd2',
+  '#d8daeb',
+  '#f7f7f7',
+  '#fee0b6',
+  '#fdb863',
+  '#e08214',
+  '#b35806',
+  '#7f3b08',
+];
+
+const DIVERGING_RGB: readonly Rgb[] = DIVERGING_CONTROL_POINTS.map(hexToRgb);
+
+/** The diverging ramp's colour at t in [0, 1] (clamped): 0 purple, 0.5 white, 1 brown. */
+export function divergingColour(t: number): Rgb {
+  return interpolate(DIVERGING_RGB, t);
+}
+
+function interpolate(points: readonly Rgb[], t: number): Rgb {
   const clamped = Number.isFinite(t) ? Math.min(1, Math.max(0, t)) : 0;
-  const scaled = clamped * (CONTROL_RGB.length - 1);
-  const lower = Math.min(CONTROL_RGB.length - 2, Math.floor(scaled));
+  const scaled = clamped * (points.length - 1);
+  const lower = Math.min(points.length - 2, Math.floor(scaled));
   const f = scaled - lower;
-  const a = CONTROL_RGB[lower];
-  const b = CONTROL_RGB[lower + 1];
+  const a = points[lower];
+  const b = points[lower + 1];
   return [a[0] + (b[0] - a[0]) * f, a[1] + (b[1] - a[1]) * f, a[2] + (b[2] - a[2]) * f];
+}
+
+/**
+ * Maps a difference [ug/m3] to the diverging ramp, linearly and symmetrically: -limit -> 0, 0 -> 0.5,
+ * +limit -> 1. Differences smaller in size than `floor` are not drawn (they would only tint the map).
+ */
+export class DifferenceScale {
+  readonly kind = 'difference' as const;
+
+  /**
+   * @param limit size of the difference at the ends of the ramp [ug/m3], > 0
+   * @param floor smallest size drawn [ug/m3], >= 0 and below limit
+   */
+  constructor(
+    readonly limit: number,
+    readonly floor = 0,
+  ) {
+    if (!Number.isFinite(limit) || limit <= 0) throw new RangeError(`difference scale limit: ${limit} is not allowed; give a finite value > 0`);
+    if (!Number.isFinite(floor) || floor < 0 || floor >= limit) throw new RangeError(`difference scale floor: ${floor} is not allowed; give 0 <= floor < limit ${limit}`);
+  }
+
+  position(difference: number): number {
+    if (!Number.isFinite(difference) || Math.abs(difference) < this.floor || difference === 0) return Number.NaN;
+    return Math.min(1, Math.max(0, 0.5 + (0.5 * difference) / this.limit));
+  }
+
+  valueAt(t: number): number {
+    return (t - 0.5) * 2 * this.limit;
+  }
 }
 
 /**
@@ -130,13 +190,13 @@ export function paintField(
   field_ug_m3: ArrayLike<number>,
   nx: number,
   ny: number,
-  scale: ColourScale,
+  scale: { position(value: number): number; readonly kind: string },
   pixels: Uint8ClampedArray,
 ): void {
   if (field_ug_m3.length !== nx * ny) throw new RangeError(`field: ${field_ug_m3.length} values for a ${nx} x ${ny} grid`);
   if (pixels.length !== 4 * nx * ny) throw new RangeError(`pixels: length ${pixels.length}; allowed: 4 x ${nx} x ${ny}`);
   // A lookup table of 256 colours keeps the per-pixel work to one position and one index.
-  const table = colourTable();
+  const table = colourTable(scale.kind === 'difference' ? 'diverging' : 'sequential');
   for (let j = 0; j < ny; j++) {
     const imageRow = ny - 1 - j;
     for (let i = 0; i < nx; i++) {
@@ -155,19 +215,21 @@ export function paintField(
   }
 }
 
-let cachedTable: Uint8Array | null = null;
+const cachedTables = new Map<string, Uint8Array>();
 
-/** The ramp sampled at 256 positions, r g b each. */
-function colourTable(): Uint8Array {
-  if (cachedTable !== null) return cachedTable;
+/** A ramp sampled at 256 positions, r g b each. */
+function colourTable(ramp: 'sequential' | 'diverging'): Uint8Array {
+  const cached = cachedTables.get(ramp);
+  if (cached !== undefined) return cached;
+  const colourAt = ramp === 'diverging' ? divergingColour : rampColour;
   const table = new Uint8Array(256 * 3);
   for (let n = 0; n < 256; n++) {
-    const [r, g, b] = rampColour(n / 255);
+    const [r, g, b] = colourAt(n / 255);
     table[3 * n] = Math.round(r);
     table[3 * n + 1] = Math.round(g);
     table[3 * n + 2] = Math.round(b);
   }
-  cachedTable = table;
+  cachedTables.set(ramp, table);
   return table;
 }
 

@@ -10,7 +10,7 @@
  */
 import L from 'leaflet';
 import { contours } from 'd3-contour';
-import { ColourScale, paintField, rampColour, rgbToHex, type ScaleKind } from '../colour/colourScale.ts';
+import { ColourScale, DifferenceScale, paintField, rampColour, rgbToHex, type ScaleKind } from '../colour/colourScale.ts';
 import { formatConcentration } from '../colour/legendLevels.ts';
 import type { GroundField } from '../field/groundField.ts';
 import type { LocalFrame } from './localFrame.ts';
@@ -29,7 +29,7 @@ const CanvasOverlay = L.ImageOverlay.extend({
 }) as unknown as new (canvas: HTMLCanvasElement, bounds: L.LatLngBounds, options?: L.ImageOverlayOptions) => L.ImageOverlay;
 
 export interface OverlayStyle {
-  scale: ColourScale;
+  scale: ColourScale | DifferenceScale;
   /** 0..1 */
   opacity: number;
 }

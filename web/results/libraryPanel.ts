@@ -55,6 +55,7 @@ export class LibraryPanel {
             `<li class="${open ? 'open' : ''}"><div class="library-row"><span class="library-name">${escapeHtml(item.name)}</span> <span class="muted">rev. ${item.revision}, ${escapeHtml(item.updatedAt.slice(0, 16).replace('T', ' '))} UTC</span></div>` +
             `<div class="library-row"><button type="button" data-act="open" data-id="${item.id}">Open</button> ` +
             `<button type="button" data-act="revisions" data-id="${item.id}" aria-expanded="${revisions !== undefined}">Revisions</button> ` +
+            (open ? '' : `<button type="button" data-act="compare" data-id="${item.id}" data-testid="compare-${item.id}">Compare</button> `) +
             `<button type="button" data-act="delete" data-id="${item.id}" class="danger">Delete</button></div>` +
             (revisions
               ? '<ol class="revisions">' +
@@ -102,6 +103,9 @@ export class LibraryPanel {
           if (this.revisions.has(id)) this.revisions.delete(id);
           else this.revisions.set(id, (await this.api.listRevisions(id)).items);
           break;
+        case 'compare':
+          await this.results.compareWith(id);
+          return;
         case 'delete':
           if (!window.confirm('Delete this scenario? It can be recovered on the server.')) return;
           await this.api.deleteScenario(id);

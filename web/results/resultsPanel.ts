@@ -6,6 +6,7 @@
  */
 import { SCREENING_CAUTION } from '../../server/writers/caution.ts';
 import { formatConcentration } from '../colour/legendLevels.ts';
+import { differenceField, receptorDeltas, type ReceptorFigures } from '../field/compare.ts';
 import { decodeGroundField, areasAtOrAbove, type GroundField } from '../field/groundField.ts';
 import { escapeHtml, formatShare } from '../map/mapControls.ts';
 import type { ScenarioDocument } from '../state/scenarioDocument.ts';
@@ -15,6 +16,8 @@ import type { ViewSettings } from './viewPanel.ts';
 
 export interface ResultsPanelHooks {
   showField(field: GroundField | null): void;
+  /** show a difference field (A - B) with the diverging scale */
+  showDifference(field: GroundField): void;
   currentSettings(): ViewSettings;
 }
 
@@ -88,6 +91,10 @@ export class ResultsPanel {
       <section class="result-block" aria-labelledby="areas-heading">
         <h2 id="areas-heading">Footprint areas</h2>
         <div class="areas" data-testid="areas"></div>
+      </section>
+      <section class="result-block" aria-labelledby="compare-heading">
+        <h2 id="compare-heading">Compare</h2>
+        <div class="compare" data-testid="compare"><p class="muted">Run this scenario, then choose Compare beside another saved scenario (Scenarios tab) to see the difference on the map and at each receptor.</p></div>
       </section>
       <section class="result-block" aria-labelledby="files-heading">
         <h2 id="files-heading">Downloads</h2>
@@ -300,32 +307,44 @@ export class ResultsPanel {
     await this.loadRun(update.id);
   }
 
-  /** Show a finished run's field, figures and files. */
-  async loadRun(runId: string): Promise<void> {
-    const run = await this.api.getRun(runId);
-    this.run = run;
+  /** A finished run's ground field and receptor figures, fetched from the server. */
+  private async fetchRunResults(run: RunRecord): Promise<{ field: GroundField | null; receptors: { columns: string[]; rows: SummaryReceptor[] } | null }> {
     const fieldFile = run.results.find((file) => file.name === 'ground-field.bin');
     const summaryFile = run.results.find((file) => file.name === 'summary.json');
+    let field: GroundField | null = null;
+    let receptors: { columns: string[]; rows: SummaryReceptor[] } | null = null;
     if (fieldFile) {
       const decoded = decodeGroundField(await this.api.resultBytes(fieldFile));
-      this.runField = {
+      field = {
         grid: decoded.grid,
         values: decoded.values,
         statistic: decoded.header.statistic === 'mean' ? 'mean over the weather' : 'concentration, one weather state',
         origin: `${run.mode} run, revision ${run.revision}`,
         height_m: decoded.header.height_m ?? 1.5,
       };
-      this.showsPreview = false;
-      (this.q('[data-action="show-preview"]') as HTMLButtonElement).disabled = false;
-      this.hooks.showField(this.runField);
-      this.lastRunToOverlay_ms = performance.now() - this.runStarted_ms;
     }
     if (summaryFile) {
       const summary = await this.api.resultJson<RunSummary>(summaryFile);
       const rows = summary.receptors ?? [];
       const columns = rows.length > 0 ? Object.keys(rows[0]).filter((key) => /_ug_m3$/.test(key)) : [];
-      this.runReceptors = { columns, rows };
+      receptors = { columns, rows };
     }
+    return { field, receptors };
+  }
+
+  /** Show a finished run's field, figures and files. */
+  async loadRun(runId: string): Promise<void> {
+    const run = await this.api.getRun(runId);
+    this.run = run;
+    const { field, receptors } = await this.fetchRunResults(run);
+    if (field) {
+      this.runField = field;
+      this.showsPreview = false;
+      (this.q('[data-action="show-preview"]') as HTMLButtonElement).disabled = false;
+      this.hooks.showField(this.runField);
+      this.lastRunToOverlay_ms = performance.now() - this.runStarted_ms;
+    }
+    this.runReceptors = receptors;
     this.refreshVerdicts();
     this.renderDownloads(run);
     this.setRunStatus(`Done: ${run.mode} run of revision ${run.revision}${run.startedAt && run.finishedAt ? `, ${formatDuration((Date.parse(run.finishedAt) - Date.parse(run.startedAt)) / 1000)}` : ''}.`);
@@ -339,6 +358,50 @@ export class ResultsPanel {
         .map((file) => `<li><a href="${escapeHtml(file.url)}" download="${escapeHtml(file.name)}" data-testid="download-${escapeHtml(file.name)}">${escapeHtml(FILE_LABELS[file.name] ?? file.name)}</a> <span class="muted">${formatBytes(file.bytes)}</span></li>`)
         .join('') +
       '</ul><p class="hint">Each file carries the screening caution (the CSV travels with the summary\'s).</p>';
+  }
+
+  /** Run (or reuse the run of) another saved scenario and compare it with this scenario's run. */
+  async compareWith(scenarioId: string): Promise<void> {
+    const element = this.q('[data-testid="compare"]');
+    if (this.run === null || this.runField === null || this.runReceptors === null) {
+      element.innerHTML = '<p class="problem">Run this scenario first: the comparison is between two finished runs.</p>';
+      return;
+    }
+    const mine = this.run;
+    const mineField = this.runField;
+    const mineReceptors = this.runReceptors;
+    try {
+      const other = await this.api.getScenario(scenarioId);
+      element.innerHTML = `<p>Running <b>${escapeHtml(other.name)}</b> (revision ${other.revision}) for the comparison…</p>`;
+      const accepted = await this.api.startRun(other.id, other.revision, mine.mode);
+      const finalUpdate = await new Promise<RunUpdate>((resolve) => {
+        this.api.followRun(accepted.id, (update) => {
+          if (FINAL_RUN_STATUSES.includes(update.status)) resolve(update);
+        });
+      });
+      if (finalUpdate.status !== 'done') {
+        element.innerHTML = `<p class="problem">The run of ${escapeHtml(other.name)} ended ${escapeHtml(finalUpdate.status)}: ${escapeHtml(finalUpdate.error?.error ?? finalUpdate.message)}</p>`;
+        return;
+      }
+      const theirs = await this.fetchRunResults(await this.api.getRun(accepted.id));
+      if (theirs.field === null || theirs.receptors === null) throw new Error('the other run has no ground field or summary');
+      const label = `difference: this scenario (A, rev. ${mine.revision}) minus ${other.name} (B, rev. ${other.revision})`;
+      const difference = differenceField(mineField, theirs.field, label);
+      this.showsPreview = false;
+      (this.q('[data-action="show-preview"]') as HTMLButtonElement).disabled = false;
+      this.hooks.showDifference(difference);
+      const column = mineReceptors.columns[0] ?? 'concentration_ug_m3';
+      const deltas = receptorDeltas(mineReceptors.rows as ReceptorFigures[], theirs.receptors.rows as ReceptorFigures[], column);
+      const number = (value: number | null, signed = false) => (value === null ? '–' : `${signed && value > 0 ? '+' : ''}${formatConcentration(value)}`);
+      element.innerHTML =
+        `<p>A: <b>${escapeHtml(String(this.doc.view.name ?? 'this scenario'))}</b> (rev. ${mine.revision}); B: <b>${escapeHtml(other.name)}</b> (rev. ${other.revision}); both ${escapeHtml(mine.mode)} runs.</p>` +
+        `<table class="results" data-testid="compare-table"><caption>Receptor ${escapeHtml(column.replace(/_ug_m3$/, ''))} [µg/m³]</caption><thead><tr><th scope="col">receptor</th><th scope="col">A</th><th scope="col">B</th><th scope="col">A − B</th></tr></thead><tbody>` +
+        deltas.map((d) => `<tr><th scope="row">${escapeHtml(d.name)}</th><td>${number(d.a_ug_m3)}</td><td>${number(d.b_ug_m3)}</td><td>${number(d.delta_ug_m3, true)}</td></tr>`).join('') +
+        '</tbody></table><button type="button" data-action="back-to-run">Show this scenario\'s run again</button>';
+      element.querySelector('[data-action="back-to-run"]')?.addEventListener('click', () => this.hooks.showField(mineField));
+    } catch (error) {
+      element.innerHTML = `<p class="problem">The comparison could not be made: ${escapeHtml(error instanceof Error ? error.message : String(error))}</p>`;
+    }
   }
 
   private async cancelRun(): Promise<void> {

@@ -4,7 +4,7 @@
  * definitions.
  */
 import { describe, expect, it } from 'vitest';
-import { ColourScale, hexToRgb, lightness, paintField, rampColour, RAMP_CONTROL_POINTS } from '../../../web/colour/colourScale.ts';
+import { ColourScale, DifferenceScale, DIVERGING_CONTROL_POINTS, divergingColour, hexToRgb, lightness, paintField, rampColour, RAMP_CONTROL_POINTS } from '../../../web/colour/colourScale.ts';
 
 /**
  * viridis at t = 0, 0.25, 0.5, 0.75, 1 as commonly published with matplotlib's colour map (van der Walt
@@ -105,5 +105,36 @@ describe('paintField', () => {
 
   it('refuses a field that does not fit the grid', () => {
     expect(() => paintField([1, 2, 3], 2, 2, new ColourScale(1, 2), new Uint8ClampedArray(16))).toThrow(/3 values for a 2 x 2 grid/);
+  });
+});
+
+describe('the difference ramp and scale', () => {
+  it('is lightest at zero and darkens steadily toward both ends (readable by lightness alone)', () => {
+    const mid = lightness(divergingColour(0.5));
+    let previous = mid;
+    for (let n = 1; n <= 50; n++) {
+      const l = lightness(divergingColour(0.5 + n / 100));
+      expect(l).toBeLessThan(previous);
+      previous = l;
+    }
+    previous = mid;
+    for (let n = 1; n <= 50; n++) {
+      const l = lightness(divergingColour(0.5 - n / 100));
+      expect(l).toBeLessThan(previous);
+      previous = l;
+    }
+    expect(DIVERGING_CONTROL_POINTS).toHaveLength(11);
+  });
+
+  it('maps differences symmetrically about zero and leaves tiny ones undrawn', () => {
+    const scale = new DifferenceScale(10, 0.1);
+    expect(scale.position(10)).toBe(1);
+    expect(scale.position(-10)).toBe(0);
+    expect(scale.position(5)).toBeCloseTo(0.75, 12);
+    expect(scale.position(-2.5)).toBeCloseTo(0.375, 12);
+    expect(scale.position(-40)).toBe(0);
+    expect(Number.isNaN(scale.position(0.05))).toBe(true);
+    expect(scale.valueAt(0.25)).toBeCloseTo(-5, 12);
+    expect(() => new DifferenceScale(0)).toThrow(/limit: 0/);
   });
 });
