@@ -50,9 +50,14 @@ async function start(): Promise<void> {
   const storage = storageOrNull();
   const api = new ApiClient('');
   const draft = storage ? ScenarioDocument.readDraft(storage) : null;
+  // An unsaved draft in this browser comes first; else the server's copy of the demo (or its newest
+  // scenario); else, with no server, the demo bundled in the page.
+  const fromServer = draft ? null : await openFromServer(api);
   const doc = draft
     ? new ScenarioDocument(draft.scenario, storage, draft.saved, draft.dirty)
-    : new ScenarioDocument(demoScenario as unknown as RawScenario, storage);
+    : fromServer
+      ? new ScenarioDocument(fromServer.scenario, storage, { id: fromServer.id, revision: fromServer.revision })
+      : new ScenarioDocument(demoScenario as unknown as RawScenario, storage);
 
   const site = siteOf(doc.view) ?? { lat: 54.0612, lon: -2.2841 };
   let frame = new LocalFrame(site);
@@ -254,6 +259,19 @@ async function start(): Promise<void> {
   requestPreview(doc.view);
   await results.connect();
   (window as unknown as { plumeplan?: unknown }).plumeplan = { doc, map, editLayer, results };
+}
+
+/** The server's copy of the demo, or its most recently changed scenario; null without a server. */
+async function openFromServer(api: ApiClient): Promise<{ id: string; revision: number; scenario: RawScenario } | null> {
+  try {
+    const { items } = await api.listScenarios(100, 0);
+    const chosen = items.find((item) => item.name === (demoScenario as { name: string }).name) ?? items[0];
+    if (chosen === undefined) return null;
+    const record = await api.getScenario(chosen.id);
+    return { id: record.id, revision: record.revision, scenario: record.scenario };
+  } catch {
+    return null;
+  }
 }
 
 function siteOf(raw: Readonly<RawScenario>): { lat: number; lon: number } | null {

@@ -22,6 +22,8 @@ export class LibraryPanel {
     doc.subscribe((_d, reason) => {
       if (reason === 'saved') void this.refresh();
     });
+    // Other clients save too: the list is fetched again whenever its tab is opened.
+    document.getElementById('tab-library')?.addEventListener('click', () => void this.refresh());
     void this.refresh();
   }
 

@@ -290,6 +290,8 @@ export class ResultsPanel {
 
   private async onUpdate(update: RunUpdate): Promise<void> {
     this.currentRunId = update.id;
+    // Every update the page received, for the end-to-end tests and the bench to read.
+    ((window as unknown as { plumeplanRunLog?: RunUpdate[] }).plumeplanRunLog ??= []).push(update);
     const progress = this.q<HTMLProgressElement>('[data-testid="run-progress"]');
     progress.value = update.progress;
     if (!FINAL_RUN_STATUSES.includes(update.status)) {
