@@ -253,3 +253,4 @@ async function steadySection(): Promise<void> {
 await main();
 await import('./weather.ts'); // weather benchmarks: the demo met year hour by hour, a continuous week (tests/bench/weather.ts)
 await import('./server.ts'); // server benchmarks: API reads while two runs compute, the event loop's longest stall (tests/bench/server.ts)
+await import('./mapPage.ts'); // map page benchmarks: run to overlay drawn, preview while dragging a stack (tests/bench/mapPage.ts)

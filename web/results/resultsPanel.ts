@@ -305,7 +305,7 @@ export class ResultsPanel {
       this.setRunStatus(update.status === 'cancelled' ? 'Run cancelled; nothing was kept.' : `Run ${update.status}: ${update.error?.error ?? update.message}`);
       return;
     }
-    this.setRunStatus('Done: loading the results…');
+    this.setRunStatus('Finished: loading the results…');
     await this.loadRun(update.id);
   }
 
