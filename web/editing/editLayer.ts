@@ -179,6 +179,14 @@ export class EditLayer {
     this.group.clearLayers();
     const sources = (this.document.view.sources as RawSource[] | undefined) ?? [];
     const receptors = (this.document.view.receptors as RawReceptor[] | undefined) ?? [];
+    // The site boundary (the fence), when the scenario gives one: peaks are reported outside it.
+    const boundary = (this.document.view.site as { boundary?: [number, number][] } | undefined)?.boundary;
+    if (Array.isArray(boundary) && boundary.length >= 4) {
+      L.polygon(
+        boundary.slice(0, -1).map(([lon, lat]) => L.latLng(lat, lon)),
+        { color: '#2b3240', weight: 1.5, dashArray: '5 4', fill: false, interactive: false, pane: 'contextPane' },
+      ).addTo(this.group);
+    }
     sources.forEach((source, index) => {
       const selected = this.selection?.list === 'sources' && this.selection.index === index;
       if (source.kind === 'area' && Array.isArray(source.polygon) && source.polygon.length >= 3) {
