@@ -155,6 +155,11 @@ function previewWeather(scenario: Scenario, hourIndex: number): { fields: Weathe
         label: `the wind rose's most frequent cell (${fmt(100 * cell.frequency)} % of the time)`,
       };
     }
+    default:
+      // A weather kind the preview does not know (added to the format later): say so rather than guess.
+      throw new RangeError(
+        `weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)}: the instant preview shows steady, hourly and wind-rose weather; run the scenario for this kind`,
+      );
   }
 }
 
