@@ -24,7 +24,8 @@ export function layerInterpolation(grid: LocalGrid, height_m: number): { layer: 
   return { layer: k, upperWeight: (height_m - centres[k]) / (centres[k + 1] - centres[k]) };
 }
 
-function horizontalBracket(fractional: number, count: number): [number, number] {
+/** Lower column (or row) index and the upper one's weight for a fractional centre index; clamped at the edges. */
+export function horizontalBracket(fractional: number, count: number): [number, number] {
   if (count === 1 || fractional <= 0) return [0, 0];
   if (fractional >= count - 1) return [count - 1, 0];
   const lower = Math.floor(fractional);

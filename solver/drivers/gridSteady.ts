@@ -10,7 +10,9 @@ import { fieldAtHeight, sampleField } from '../diagnostics/receptorSampling.ts';
 import { paddedFieldMass_g } from '../fields/paddedLayout.ts';
 import { lossesFor } from '../losses/firstOrderLosses.ts';
 import { effectiveHeight_m } from '../sources/plumeRise.ts';
-import { gridEmissionFromSources, totalEmission_g_s } from '../sources/gridEmission.ts';
+import { gridEmissionFromSources, totalEmission_g_s, type GridEmission } from '../sources/gridEmission.ts';
+import type { NearFieldPlan, NearFieldTreatment } from '../sources/nearField.ts';
+import { SubGridPlume } from '../sources/subGridPlume.ts';
 import { ACTIVE_COLUMN_THRESHOLD, solveSteadyState, STEADY_TOLERANCE, type SteadySolveReport } from '../timestepping/steadySweep.ts';
 import { columnWindFromWeather } from '../wind/columnWind.ts';
 import { createDispersionModel, type DispersionModel, type DispersionModelParts } from './model.ts';
@@ -49,7 +51,15 @@ export interface GridSteadyOptions {
    * start's saving; their imbalance is reported in the summary instead.
    */
   closeBudget?: boolean;
+  /**
+   * How sources reach the grid (../sources/nearField.ts): default DEFAULT_NEAR_FIELD, the sub-grid plume
+   * (plume-in-grid); DirectRelease puts every source straight into its cells.
+   */
+  nearField?: NearFieldTreatment;
 }
+
+/** The grid solver's near-field treatment unless one is passed: plume-in-grid (docs/near-field.md). */
+export const DEFAULT_NEAR_FIELD: NearFieldTreatment = new SubGridPlume();
 
 /** Release height of each source: effective height (plume rise) for stacks, releaseHeight_m for areas [m]. */
 export function releaseHeights_m(input: Pick<SteadyRunInput, 'sources' | 'landUse' | 'windProfile'>, weather: ResolvedWeather): number[] {
@@ -58,12 +68,16 @@ export function releaseHeights_m(input: Pick<SteadyRunInput, 'sources' | 'landUs
   );
 }
 
-/** The model parts of a run input under one weather state (emission at the given release heights). */
+/**
+ * The model parts of a run input under one weather state. The emission is the one given (a near-field
+ * plan's), or else every source released straight into its cells at the given release heights.
+ */
 export function gridModelParts(
   input: Omit<SteadyRunInput, 'weather' | 'receptors' | 'groundLevelHeight_m'>,
   weather: ResolvedWeather,
   heights_m: number[],
   background_g_m3 = 0,
+  emission?: GridEmission,
 ): DispersionModelParts {
   const { grid } = input;
   return {
@@ -71,7 +85,7 @@ export function gridModelParts(
     wind: columnWindFromWeather(grid, weather, input.landUse, input.windProfile),
     closure: closureFor(input.dispersion, input.landUse),
     weather,
-    emission: gridEmissionFromSources(grid, input.sources, heights_m),
+    emission: emission ?? gridEmissionFromSources(grid, input.sources, heights_m),
     losses: lossesFor(input.pollutant, weather.rain_mm_h),
     boundaries: {
       lateral: OpenBoundaries(background_g_m3),
@@ -165,6 +179,8 @@ export interface GridSteadyDetail {
   result: SteadyFieldResult;
   model: DispersionModel;
   report: SteadySolveReport;
+  /** the near-field plan the solve used (its sub-grid concentrations are in the result, not in model.field) */
+  nearField: NearFieldPlan;
 }
 
 /**
@@ -175,8 +191,9 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
   control.signal?.throwIfAborted();
   const { grid, weather } = input;
   const heights = releaseHeights_m(input, weather);
+  const nearField = (options.nearField ?? DEFAULT_NEAR_FIELD).plan({ ...input, releaseHeights_m: heights });
   // The steady sweeps work in plain arrays; the SIMD time-step kernel and its shared memory are not needed.
-  const model = createDispersionModel({ ...gridModelParts(input, weather, heights, options.background_g_m3 ?? 0), simd: false });
+  const model = createDispersionModel({ ...gridModelParts(input, weather, heights, options.background_g_m3 ?? 0, nearField.emission), simd: false });
   const tolerance = options.tolerance ?? STEADY_TOLERANCE;
   // Receptors are checked before the solve, so a bad position fails at once.
   input.receptors.forEach((receptor, n) => {
@@ -204,8 +221,18 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
     control,
   });
 
-  const rates = steadyBudgetRates_g_s(model);
-  const heldMass_g = paddedFieldMass_g(model.layout, grid, model.field);
+  // The grid's budget plus what the sub-grid plumes lose before they reach it.
+  const gridRates = steadyBudgetRates_g_s(model);
+  const subGrid = nearField.losses_g_s;
+  const rates = {
+    emitted: nearField.emitted_g_s,
+    decayed: gridRates.decayed + subGrid.decayed,
+    washedOut: gridRates.washedOut + subGrid.washedOut,
+    dryDeposited: gridRates.dryDeposited + subGrid.dryDeposited,
+    outflow: gridRates.outflow,
+  };
+  const accounted_g_s = rates.decayed + rates.washedOut + rates.dryDeposited + rates.outflow;
+  const heldMass_g = paddedFieldMass_g(model.layout, grid, model.field) + nearField.heldMass_g;
   const massBudget: MassBudget = {
     basis: 'steady state: rates over one hour of operation [g]; inDomain is the change in the mass held over that hour (zero at steady state)',
     emitted: rates.emitted * SECONDS_PER_HOUR,
@@ -214,13 +241,16 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
     washedOut: rates.washedOut * SECONDS_PER_HOUR,
     dryDeposited: rates.dryDeposited * SECONDS_PER_HOUR,
     outflow: rates.outflow * SECONDS_PER_HOUR,
-    relativeImbalance: rates.relativeImbalance,
+    relativeImbalance: rates.emitted > 0 ? (rates.emitted - accounted_g_s) / rates.emitted : 0,
   };
   const receptors = new Float64Array(input.receptors.length);
   input.receptors.forEach((receptor, n) => {
     const value = sampleField(grid, model.layout, model.field, receptor.x_m, receptor.y_m, receptor.height_m);
-    receptors[n] = (value > 0 ? value : 0) * MICROGRAMS_PER_GRAM;
+    const subGridValue = nearField.concentration_g_m3(receptor.x_m, receptor.y_m, receptor.height_m);
+    receptors[n] = ((value > 0 ? value : 0) + subGridValue) * MICROGRAMS_PER_GRAM;
   });
+  const groundLevel_ug_m3 = fieldAtHeight(grid, model.layout, model.field, input.groundLevelHeight_m, MICROGRAMS_PER_GRAM);
+  if (nearField.holdsConcentration) addSubGridField(grid, nearField, input.groundLevelHeight_m, groundLevel_ug_m3);
   const sources: SourceReport[] = input.sources.map((source, n) => ({
     id: source.id,
     x_m: source.x_m,
@@ -249,13 +279,13 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
     input.pollutant.depositionVelocity_m_s > 0
       ? `dry deposition applied as a ground flux at ${input.pollutant.depositionVelocity_m_s} m/s`
       : 'dry deposition not applied (deposition velocity 0)',
-    'point sources released at their effective height, shared among the surrounding cells (trilinear weights)',
+    ...nearField.notes,
     `receptors and the ground-level field interpolated between layer centres; below the lowest centre (${grid.zCentres_m[0].toFixed(2)} m) the lowest layer's value`,
     `mass held in the domain at steady state: ${heldMass_g.toPrecision(4)} g`,
   ];
   const result: SteadyFieldResult = {
     mode: 'grid',
-    groundLevel_ug_m3: fieldAtHeight(grid, model.layout, model.field, input.groundLevelHeight_m, MICROGRAMS_PER_GRAM),
+    groundLevel_ug_m3,
     receptors_ug_m3: receptors,
     sources,
     massBudget_g: massBudget,
@@ -264,7 +294,18 @@ export function solveGridSteadyDetailed(input: SteadyRunInput, control: RunContr
     notes,
   };
   control.onProgress?.(1, `steady state after ${report.sweeps} sweeps`);
-  return { result, model, report };
+  return { result, model, report, nearField };
+}
+
+/** Add a near-field plan's sub-grid concentrations at one height to a ground-level field [ug/m3]. */
+function addSubGridField(grid: SteadyRunInput['grid'], plan: NearFieldPlan, height_m: number, field_ug_m3: Float64Array): void {
+  for (let j = 0; j < grid.ny; j++) {
+    const y_m = grid.ySouth_m + (j + 0.5) * grid.spacing_m;
+    for (let i = 0; i < grid.nx; i++) {
+      const value = plan.concentration_g_m3(grid.xWest_m + (i + 0.5) * grid.spacing_m, y_m, height_m);
+      if (value > 0) field_ug_m3[i + grid.nx * j] += value * MICROGRAMS_PER_GRAM;
+    }
+  }
 }
 
 /**

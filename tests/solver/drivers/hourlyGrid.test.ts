@@ -76,8 +76,9 @@ describe('series in grid mode (small grid)', () => {
       expect(steady.receptors_ug_m3[r]).toBeGreaterThan(0.1);
       expect(Math.abs(perHour[23][r] / perHour[2][r] - 1)).toBeLessThan(1e-4);
       expect(Math.abs(max[r] / steady.receptors_ug_m3[r] - 1)).toBeLessThan(0.05);
-      // the first hour fills the domain: its mean is below the settled hours'
-      expect(perHour[0][r]).toBeLessThan(perHour[1][r]);
+      // the first hour fills the domain: its mean is not above the settled hours' (equal where the
+      // receptor is still in a sub-grid plume, which is taken as steady within each hour)
+      expect(perHour[0][r]).toBeLessThanOrEqual(perHour[1][r]);
     }
     expect(Math.abs(result.massBudget_g?.relativeImbalance ?? 1)).toBeLessThan(1e-9);
   });
