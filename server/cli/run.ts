@@ -23,7 +23,7 @@ import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts'
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
 
-export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--resolution-check]
 
 Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
   summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
@@ -36,7 +36,13 @@ Options:
                      reference); default: the scenario's solver.mode
   -l, --levels LIST  footprint levels in ug/m3, positive and increasing, e.g. 1,2,5,10;
                      default: round numbers (1-2-5 series) across the field's range, at most 7
+  -r, --resolution-check
+                     steady grid runs: solve again at half the cell size and report how much
+                     each figure changes (made without asking when the finer grid is small)
   -h, --help         show this help
+
+Steady grid runs also report how far their figures are from the Gaussian mode's, receptor by
+receptor and at the peak, with a note when one is more than 1.25 times the other.
 
 Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 Set PLUMEPLAN_DEBUG=1 to see the stack of an internal failure.
@@ -48,6 +54,7 @@ interface RunArguments {
   outDirectory: string;
   mode?: SolverMode;
   levels_ug_m3?: number[];
+  resolutionCheck?: boolean;
 }
 
 export interface RunCommandOptions {
@@ -116,6 +123,7 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
         solve,
         seriesSolvers: pool?.solvers,
         stepThreads: defaultSeriesThreads(),
+        resolutionCheck: args.resolutionCheck === true ? 'always' : 'auto',
         control: { onProgress: (fraction, message) => progress.update(fraction, message), signal: pool !== null ? interrupt.signal : undefined },
       });
     } finally {
@@ -138,6 +146,7 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     out: { type: 'string', short: 'o' },
     mode: { type: 'string', short: 'm' },
     levels: { type: 'string', short: 'l' },
+    'resolution-check': { type: 'boolean', short: 'r' },
     help: { type: 'boolean', short: 'h' },
   });
   if (options.help === true) return 'help';
@@ -153,6 +162,7 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     outDirectory: options.out,
     mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
+    resolutionCheck: options['resolution-check'] === true,
   };
 }
 
@@ -243,8 +253,27 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
   if (levels.length === 0) lines.push('Footprint: no bands (the field is zero or flat)');
   else if (footprint.features.length === 0) lines.push(`Footprint: no ground reaches the lowest level, ${levels[0]} ug/m3`);
   else lines.push(`Footprint bands from ${levels.join(', ')} ug/m3 (the top band open-ended)`);
+  lines.push(...checkLines(result, summary.notes));
   lines.push(`Caution: ${SCREENING_CAUTION}`);
   return `${lines.join('\n')}\n`;
+}
+
+/** The run's checks on itself (solver/drivers/runChecks.ts), in a line each, and their notes. */
+function checkLines(result: ScenarioRunResult, notes: readonly string[]): string[] {
+  const lines: string[] = [];
+  const largestFactor = (check: { receptors: { ratio: number | null }[]; peak: { ratio: number | null } }): string => {
+    const ratios = [...check.receptors, check.peak].map((item) => item.ratio).filter((ratio): ratio is number => ratio !== null && ratio > 0);
+    if (ratios.length === 0) return 'nothing to compare';
+    return `largest factor ${Math.max(...ratios.map((ratio) => Math.max(ratio, 1 / ratio))).toFixed(2)}`;
+  };
+  const modeCheck = result.extraSummary.modeCheck as Parameters<typeof largestFactor>[0] | undefined;
+  if (modeCheck !== undefined) lines.push(`Mode check (grid against Gaussian, receptors and peak): ${largestFactor(modeCheck)}`);
+  const resolutionCheck = result.extraSummary.resolutionCheck as ({ made: true } & Parameters<typeof largestFactor>[0]) | { made: false; reason: string } | undefined;
+  if (resolutionCheck !== undefined) {
+    lines.push(resolutionCheck.made ? `Resolution check (half the cell size): ${largestFactor(resolutionCheck)}` : `Resolution check ${resolutionCheck.reason}`);
+  }
+  lines.push(...notes.filter((note) => /^(mode check|resolution check|domain edge):/.test(note)).map((note) => `Note: ${note}`));
+  return lines;
 }
 
 /** The receptors as an aligned table: id, the figure columns (their names as headers), the name. */

@@ -10,6 +10,7 @@
 import { RESULT_FORMAT, type Scenario, type SolverMode } from '../../scenarios/format/types.ts';
 import type { MassBudget, ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
+import { edgeCutNotes, footprintEdgeCuts } from '../../solver/diagnostics/edgeCut.ts';
 import { sitePeak, type GroundPeak } from '../../solver/grid/siteBoundary.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import {
@@ -84,7 +85,14 @@ export interface ResultSummary {
   sources: SummarySource[];
   peak: SummaryPeak;
   receptors: SummaryReceptor[];
-  footprint: { file: string; statistic: 'concentration' | 'mean'; height_m: number; levels_ug_m3: number[] };
+  footprint: {
+    file: string;
+    statistic: 'concentration' | 'mean';
+    height_m: number;
+    levels_ug_m3: number[];
+    /** whether the lowest band reaches the domain's edge: a sentence when it does not, else where it is cut */
+    edge?: string | { side: string; length_m: number; from_m: number; to_m: number; largest_ug_m3: number }[];
+  };
   caution: string;
   notes: string[];
   [extra: string]: unknown;
@@ -161,6 +169,16 @@ export function buildSummary(
     caution: SCREENING_CAUTION,
     notes: [...result.notes],
   };
+  // Whether the lowest band shown reaches the domain's edge (and is cut there), and where.
+  const lowest = summary.footprint.levels_ug_m3[0];
+  if (lowest !== undefined) {
+    const cuts = footprintEdgeCuts(grid, result.footprint_ug_m3, lowest);
+    summary.footprint.edge =
+      cuts.length === 0
+        ? `inside the domain down to the lowest level, ${lowest} ug/m3`
+        : cuts.map((cut) => ({ side: cut.side, length_m: roundDecimals(cut.length_m, 1), from_m: roundDecimals(cut.from_m, 1), to_m: roundDecimals(cut.to_m, 1), largest_ug_m3: roundFigure('edge_ug_m3', cut.largest) }));
+    summary.notes.push(...edgeCutNotes(cuts, lowest));
+  }
   for (const [key, value] of Object.entries(result.extraSummary)) {
     if (key in summary) {
       throw new Error(`extraSummary.${key}: would overwrite summary.json's own "${key}"; give it another name`);

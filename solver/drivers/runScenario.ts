@@ -14,8 +14,11 @@ import { runHourlySeries, type ContinuousSeriesRunner } from './hourlySeries.ts'
 import type { SeriesBaseInput } from './seriesSolves.ts';
 import { runWindRose } from './windRose.ts';
 import type { SteadySolver } from './solveSteady.ts';
-import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
-import type { MassBudget, RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
+import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario, steadyRunResult } from './steadyScenario.ts';
+import { solveSteady } from './solveSteady.ts';
+import { AUTOMATIC_RESOLUTION_CHECK_CELLS, compareModes, compareResolutions } from './runChecks.ts';
+import { columnsPerSide } from '../grid/localGrid.ts';
+import type { MassBudget, RunControl, ScenarioRunResult, SteadyFieldResult, SteadyRunInput } from './types.ts';
 
 /**
  * Input the scenario file passed its schema with but that cannot be run as given (a source outside the
@@ -39,6 +42,12 @@ export interface RunScenarioOptions {
   seriesSolvers?: readonly SteadySolver[];
   /** threads each step of a continuous grid march is split over (default 1) */
   stepThreads?: number;
+  /**
+   * the resolution check of a steady grid run (the same run at half the cell size, ./runChecks.ts):
+   * 'auto' (default) when the half-size grid has at most AUTOMATIC_RESOLUTION_CHECK_CELLS cells,
+   * 'always', or 'never'
+   */
+  resolutionCheck?: 'auto' | 'always' | 'never';
 }
 
 /**
@@ -102,7 +111,13 @@ async function dispatchByWeather(
             'series or a wind rose, which give the statistics each standard is defined by',
         };
       }
-      return runSteadyScenario(input, { mode, control, solve, extraSummary });
+      if (mode !== 'grid') return runSteadyScenario(input, { mode, control, solve, extraSummary });
+      const solver = solve ?? solveSteady;
+      const field = await solver(input, mode, control);
+      const checkNotes = await steadyGridChecks(scenario, geometry, input, field, solver, options.resolutionCheck ?? 'auto', control, extraSummary);
+      const result = steadyRunResult(input, field, extraSummary);
+      result.notes.push(...checkNotes);
+      return result;
     }
     case 'hourly': {
       return runHourlySeries(seriesBaseInput(scenario, geometry), weather.hours, {
@@ -128,6 +143,53 @@ async function dispatchByWeather(
     default:
       throw new ScenarioInputError(`weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)} is not a weather kind`);
   }
+}
+
+/**
+ * The checks a steady grid run makes on itself (./runChecks.ts): the Gaussian mode's figures beside its
+ * own (always: the Gaussian mode costs a fraction of a grid solve), and, when asked or when the half-size
+ * grid is small, the same run at half the cell size. Their tables go into `extraSummary` (modeCheck,
+ * resolutionCheck); the notes for figures beyond the thresholds are returned.
+ */
+async function steadyGridChecks(
+  scenario: Scenario,
+  geometry: ScenarioGeometry,
+  input: SteadyRunInput,
+  field: SteadyFieldResult,
+  solver: SteadySolver,
+  resolutionCheck: 'auto' | 'always' | 'never',
+  control: RunControl,
+  extraSummary: Record<string, unknown>,
+): Promise<string[]> {
+  const ids = input.receptors.map((receptor) => receptor.id);
+  const notes: string[] = [];
+  const gaussian = await solveSteady(input, 'gaussian', { signal: control.signal });
+  const modeCheck = compareModes(field, gaussian, ids);
+  extraSummary.modeCheck = modeCheck;
+  notes.push(...modeCheck.notes);
+  const halfDomain = { ...geometry.domain, spacing_m: geometry.domain.spacing_m / 2 };
+  const halfCells = columnsPerSide(halfDomain) ** 2 * halfDomain.layers;
+  const wanted = resolutionCheck === 'always' || (resolutionCheck === 'auto' && halfCells <= AUTOMATIC_RESOLUTION_CHECK_CELLS);
+  if (!wanted) {
+    const reason =
+      resolutionCheck === 'never'
+        ? 'not asked for'
+        : `not made: the half-size grid would have ${halfCells} cells, above the ${AUTOMATIC_RESOLUTION_CHECK_CELLS} made without asking (ask for it: plumeplan run --resolution-check)`;
+    extraSummary.resolutionCheck = { made: false, reason };
+    return notes;
+  }
+  try {
+    control.onProgress?.(0, `resolution check: the same run at ${halfDomain.spacing_m} m cells`);
+    const finer = prepareScenarioGeometry({ ...scenario, domain: halfDomain });
+    const finerField = await solver(steadyInput(scenario, finer, input.weather), 'grid', { signal: control.signal });
+    const comparison = compareResolutions(field, finerField, ids, geometry.domain.spacing_m);
+    extraSummary.resolutionCheck = { made: true, ...comparison };
+    notes.push(...comparison.notes);
+  } catch (error) {
+    if (!(error instanceof RangeError)) throw error;
+    extraSummary.resolutionCheck = { made: false, reason: `not made: ${error.message}` };
+  }
+  return notes;
 }
 
 /** Rows per step thread below which a continuous march stays on one thread. */

@@ -1,0 +1,83 @@
+/**
+ * The checks a steady grid run makes on itself (solver/drivers/runChecks.ts): behaviour checks of the
+ * thresholds (a factor of 1.25 between the modes, 10 % between cell sizes) on made-up fields, and one
+ * small run of the demo through runScenario, where both checks are made and their tables land in the
+ * summary.
+ */
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { parseScenario } from '../../../scenarios/format/schema.ts';
+import type { Scenario } from '../../../scenarios/format/types.ts';
+import { compareModes, compareResolutions, MODE_DIFFERENCE_FACTOR, RESOLUTION_CHANGE_LIMIT, type FieldComparison } from '../../../solver/drivers/runChecks.ts';
+import { runScenario } from '../../../solver/drivers/runScenario.ts';
+import type { SteadyFieldResult } from '../../../solver/drivers/types.ts';
+
+function field(receptors: number[], ground: number[]): SteadyFieldResult {
+  return {
+    mode: 'grid',
+    groundLevel_ug_m3: Float64Array.from(ground),
+    receptors_ug_m3: Float64Array.from(receptors),
+    sources: [],
+    massBudget_g: null,
+    steps: 0,
+    wallSeconds: 0,
+    notes: [],
+  };
+}
+
+describe('mode check', () => {
+  it('notes a receptor and a peak more than 1.25 times apart, and not those within it', () => {
+    expect(MODE_DIFFERENCE_FACTOR).toBe(1.25);
+    const grid = field([10, 10, 10], [0, 40, 5]);
+    const gaussian = field([12.4, 12.6, 7.9], [0, 40, 60]);
+    const check = compareModes(grid, gaussian, ['a', 'b', 'c']);
+    expect(check.receptors.map((r) => r.ratio)).toEqual([10 / 12.4, 10 / 12.6, 10 / 7.9]);
+    expect(check.peak).toMatchObject({ value_ug_m3: 40, other_ug_m3: 60 });
+    expect(check.notes).toHaveLength(3);
+    expect(check.notes[0]).toMatch(/^mode check: at receptor b the grid mode gives 10 ug\/m3 and the Gaussian mode 12\.6 ug\/m3, a factor of 1\.26/);
+    expect(check.notes[1]).toMatch(/^mode check: at receptor c .* a factor of 1\.27/);
+    expect(check.notes[2]).toMatch(/^mode check: at the ground-level peak .* 40 ug\/m3 and the Gaussian mode 60 ug\/m3, a factor of 1\.50/);
+  });
+
+  it('says nothing about receptors a thousand times below the largest figure', () => {
+    const check = compareModes(field([10, 1e-3], [10]), field([10, 5e-3], [10]), ['near', 'far']);
+    expect(check.notes).toEqual([]);
+  });
+});
+
+describe('resolution check', () => {
+  it('notes a figure that moves by more than 10 % at half the cell size', () => {
+    expect(RESOLUTION_CHANGE_LIMIT).toBe(0.1);
+    const check = compareResolutions(field([10, 10], [20]), field([10.9, 11.2], [21]), ['a', 'b'], 50);
+    expect(check.notes).toHaveLength(1);
+    expect(check.notes[0]).toMatch(/^resolution check: at receptor b the figure changes from 10 to 11\.2 ug\/m3 \(\+12 %\) at half the cell size \(25 m instead of 50 m/);
+  });
+});
+
+describe('checks of a steady grid run through runScenario', () => {
+  const demo = path.join(import.meta.dirname, '..', '..', '..', 'scenarios', 'merrowdene-heat-plant', 'scenario.json');
+  function smallDemo(): Scenario {
+    const raw = JSON.parse(readFileSync(demo, 'utf8'));
+    raw.domain = { halfWidth_m: 3000, spacing_m: 150, height_m: 1000, layers: 10 };
+    const outcome = parseScenario(raw);
+    if (!outcome.ok) throw new Error(JSON.stringify(outcome.issues));
+    return outcome.scenario;
+  }
+
+  it('puts the mode check and (a small grid) the resolution check into the summary, and only asked-for checks when told', async () => {
+    const scenario = smallDemo();
+    const result = await runScenario(scenario, { mode: 'grid' });
+    const modeCheck = result.extraSummary.modeCheck as FieldComparison;
+    expect(modeCheck.receptors.map((r) => r.id)).toEqual(['fennick-row', 'school', 'care-home']);
+    modeCheck.receptors.forEach((r, n) => expect(r.value_ug_m3).toBe(result.receptorColumns[0].values[n]));
+    const resolutionCheck = result.extraSummary.resolutionCheck as { made: boolean } & FieldComparison;
+    expect(resolutionCheck.made).toBe(true);
+    expect(resolutionCheck.basis).toBe('cells of 150 m against 75 m, same domain');
+    for (const note of [...modeCheck.notes, ...resolutionCheck.notes]) expect(result.notes).toContain(note);
+    const never = await runScenario(scenario, { mode: 'grid', resolutionCheck: 'never' });
+    expect(never.extraSummary.resolutionCheck).toEqual({ made: false, reason: 'not asked for' });
+    const gaussian = await runScenario(scenario, { mode: 'gaussian' });
+    expect(gaussian.extraSummary.modeCheck).toBeUndefined();
+  });
+});
