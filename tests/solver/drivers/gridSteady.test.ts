@@ -105,7 +105,9 @@ describe('solveGridSteady', () => {
       const { result, report } = solveGridSteadyDetailed(input, {}, { tolerance });
       expect(report.converged).toBe(true);
       expect(Math.abs(result.massBudget_g!.relativeImbalance)).toBeLessThanOrEqual(tolerance);
-      expect(report.budgetImbalance).toBe(result.massBudget_g!.relativeImbalance);
+      // the run's figure adds the sub-grid plume's losses (exact) and divides by the sources' emission,
+      // the sweep's by the grid's: equal but for rounding in the sums
+      expect(report.budgetImbalance).toBeCloseTo(result.massBudget_g!.relativeImbalance, 12);
     }
   });
 
