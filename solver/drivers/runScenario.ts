@@ -16,6 +16,8 @@ import { runWindRose } from './windRose.ts';
 import type { SteadySolver } from './solveSteady.ts';
 import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
 import type { MassBudget, RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
+import { assessmentPlan, type AssessmentPlan } from '../assessment/standards.ts';
+import { assessRun } from '../assessment/assessRun.ts';
 
 /**
  * Input the scenario file passed its schema with but that cannot be run as given (a source outside the
@@ -57,14 +59,15 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
   // The same warnings `plumeplan validate` prints (server/scenarioFiles/semantics.ts calls this too).
   const warnings = asInputError(() => inputWarnings(scenario, geometry));
+  const plan = scenario.assessment === undefined ? undefined : asInputError(() => assessmentPlan(scenario.assessment!, scenario.pollutant.name));
   // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
   try {
-    const result = await dispatchByWeather(scenario, geometry, mode, control, options);
+    const result = await dispatchByWeather(scenario, geometry, mode, control, options, plan);
+    const assessed = assessRun(scenario, plan, { ...result, site: geometry.site }, geometry.receptors);
     return {
-      ...result,
-      site: geometry.site,
-      notes: [...result.notes, ...formatWarnings(warnings).map((line) => `input warning: ${line}`)],
-      extraSummary: { ...result.extraSummary, inputWarnings: warnings },
+      ...assessed,
+      notes: [...assessed.notes, ...formatWarnings(warnings).map((line) => `input warning: ${line}`)],
+      extraSummary: { ...assessed.extraSummary, inputWarnings: warnings },
     };
   } catch (error) {
     if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
@@ -78,6 +81,7 @@ async function dispatchByWeather(
   mode: SolverMode,
   control: RunControl,
   options: RunScenarioOptions,
+  plan: AssessmentPlan | undefined,
 ): Promise<ScenarioRunResult> {
   const { solve, seriesSolvers } = options;
   const stepThreads = options.stepThreads ?? 1;
@@ -110,7 +114,7 @@ async function dispatchByWeather(
         method: scenario.solver.hourlyMethod,
         continuous: continuousGridSeriesWithThreads(stepThreads),
         site: scenario.site,
-        assessment: scenario.assessment,
+        assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
@@ -120,7 +124,7 @@ async function dispatchByWeather(
       return runWindRose(seriesBaseInput(scenario, geometry), weather, {
         mode,
         site: scenario.site,
-        assessment: scenario.assessment,
+        assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },

@@ -14,6 +14,8 @@ import type {
 import type { LocalGrid } from '../grid/types.ts';
 import type { SiteColumns } from '../grid/siteBoundary.ts';
 import type { WindRoseTable } from '../meteorology/windRoseTable.ts';
+import type { ScreeningVerdicts } from '../assessment/verdicts.ts';
+import type { DownwashFlag } from '../assessment/downwash.ts';
 
 /** Weather of one steady period with every field resolved (stability derived, calms applied). */
 export interface ResolvedWeather {
@@ -176,4 +178,33 @@ export interface ScenarioRunResult {
   site?: SiteColumns | null;
   /** the weather's wind rose (series and rose runs) and a caption for it; the writers draw the picture */
   windRose?: { table: WindRoseTable; caption: string };
+  /**
+   * each assessed standard's statistic of the assessed pollutant at the receptors and on the ground,
+   * where the weather allows it (../assessment/verdicts.ts turns these into verdicts)
+   */
+  standardFields?: StandardField[];
+  /** the screening verdicts, when the scenario has an assessment */
+  verdicts?: ScreeningVerdicts;
+  /** stacks flagged as standing in a building's wake */
+  downwash?: DownwashFlag[];
+}
+
+/**
+ * How a standard's figure was formed:
+ * - "statistic": the standard's own statistic of an hourly series (or a wind rose's distribution);
+ * - "upperBound": the highest hourly PC over the screening weather set, which no percentile of hourly or
+ *   daily means and no period mean can exceed (constant emissions);
+ * - "oneWeatherHour": the hourly PC of one steady weather state, for hourly standards only.
+ */
+export type StandardFieldBasis = 'statistic' | 'upperBound' | 'oneWeatherHour';
+
+/** One standard's statistic of the assessed pollutant [ug/m3]. */
+export interface StandardField {
+  /** the standard's name (AssessedStandard.name) */
+  name: string;
+  basis: StandardFieldBasis;
+  /** in the order of the scenario's receptors */
+  receptors_ug_m3: Float64Array;
+  /** on the ground-level grid, index i + nx * j; null where the weather gives no ground map */
+  ground_ug_m3: Float64Array | null;
 }
