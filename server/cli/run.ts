@@ -22,8 +22,12 @@ import { writeResultFolder, type WrittenResultFolder } from '../writers/writeRes
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
+import { assessmentPlan, type AssessedStandard } from '../../solver/assessment/standards.ts';
+import { levelsFromPercentages } from '../../solver/assessment/footprintAreas.ts';
+import { verdictTable } from '../writers/assessmentFigures.ts';
+import type { ScreeningVerdicts } from '../../solver/assessment/verdicts.ts';
 
-export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--percent-of STANDARD]
 
 Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
   summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
@@ -36,7 +40,16 @@ Options:
                      reference); default: the scenario's solver.mode
   -l, --levels LIST  footprint levels in ug/m3, positive and increasing, e.g. 1,2,5,10;
                      default: round numbers (1-2-5 series) across the field's range, at most 7
+  -p, --percent-of STANDARD
+                     read --levels as percentages of this assessed standard's limit (its name as
+                     in summary.json's verdicts); without --levels: 1,10,50,100
   -h, --help         show this help
+
+With an assessment in the scenario, summary.json holds the screening verdicts (PC, PEC, % of each
+standard, the two-stage screen as common practice in permit guidance, never a legal decision) and
+each standard's statistic is mapped on the ground (standard-*.geojson). summary.json's footprint
+lists, for every level, the area inside it, the farthest distance from each source and the
+receptors inside it.
 
 Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 Set PLUMEPLAN_DEBUG=1 to see the stack of an internal failure.
@@ -48,6 +61,8 @@ interface RunArguments {
   outDirectory: string;
   mode?: SolverMode;
   levels_ug_m3?: number[];
+  /** the standard whose limit --levels are percentages of */
+  percentOf?: string;
 }
 
 export interface RunCommandOptions {
@@ -98,6 +113,11 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
     }
     const scenario = outcome.scenario;
     const mode = args.mode ?? scenario.solver.mode;
+    const levels = resolveLevels(scenario, args);
+    if (typeof levels === 'string') {
+      io.stderr.write(`plumeplan run: ${levels}\n`);
+      return 2;
+    }
 
     // A single steady grid solve runs in a worker thread (the command stays responsive and Ctrl-C stops
     // it at once). The many solves of an hour-by-hour series or a wind rose go to a pool of worker
@@ -123,7 +143,7 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
       await pool?.close();
     }
     progress.update(1, 'writing the result folder');
-    const written = await writeResultFolder(args.outDirectory, scenario, result, { levels_ug_m3: args.levels_ug_m3 });
+    const written = await writeResultFolder(args.outDirectory, scenario, result, levels);
     progress.finish();
     io.stdout.write(describeRun(scenario, result, written));
     return 0;
@@ -138,6 +158,7 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     out: { type: 'string', short: 'o' },
     mode: { type: 'string', short: 'm' },
     levels: { type: 'string', short: 'l' },
+    'percent-of': { type: 'string', short: 'p' },
     help: { type: 'boolean', short: 'h' },
   });
   if (options.help === true) return 'help';
@@ -153,13 +174,47 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     outDirectory: options.out,
     mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
+    percentOf: typeof options['percent-of'] === 'string' ? options['percent-of'] : undefined,
+  };
+}
+
+/** Default percentages of a standard's limit for --percent-of without --levels [%]. */
+const DEFAULT_PERCENT_LEVELS = [1, 10, 50, 100];
+
+/**
+ * The footprint levels: as given in ug/m3, or as percentages of an assessed standard's limit.
+ *
+ * @returns the levels and how they were chosen, or a message naming --percent-of and the allowed names
+ */
+export function resolveLevels(
+  scenario: Scenario,
+  args: { levels_ug_m3?: number[]; percentOf?: string },
+): { levels_ug_m3?: number[]; levelsBasis?: string } | string {
+  if (args.percentOf === undefined) return { levels_ug_m3: args.levels_ug_m3 };
+  let standards: AssessedStandard[] = [];
+  try {
+    standards = scenario.assessment === undefined ? [] : assessmentPlan(scenario.assessment, scenario.pollutant.name).standards;
+  } catch (error) {
+    if (!(error instanceof RangeError)) throw error;
+    return `invalid scenario: ${error.message}`;
+  }
+  const standard = standards.find((candidate) => candidate.name === args.percentOf);
+  if (standard === undefined) {
+    const names = standards.map((candidate) => JSON.stringify(candidate.name)).join(', ');
+    return `--percent-of: ${JSON.stringify(args.percentOf)} is not an assessed standard of this scenario; ` +
+      (names === '' ? 'the scenario has no assessment standards' : `use one of ${names}`);
+  }
+  const percents = args.levels_ug_m3 ?? DEFAULT_PERCENT_LEVELS;
+  return {
+    levels_ug_m3: levelsFromPercentages(percents, standard.limit_ug_m3),
+    levelsBasis: `${percents.join(', ')} % of ${standard.name}, ${standard.limit_ug_m3} ug/m3`,
   };
 }
 
 /** Whether a run makes many steady solves (a pool of worker threads takes them). */
 function usesSeriesPool(scenario: Scenario): boolean {
   const weather = scenario.weather;
-  return weather.kind === 'windRose' || (weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours');
+  return weather.kind === 'windRose' || weather.kind === 'screeningSet' || (weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours');
 }
 
 /** Exit code of a run stopped by an interrupt (128 + SIGINT, the shell convention). */
@@ -212,8 +267,8 @@ function reportFailure(error: unknown, io: CommandIO): number {
 export function describeRun(scenario: Scenario, result: ScenarioRunResult, written: WrittenResultFolder): string {
   const { summary, footprint } = written;
   const { peak } = summary;
-  const weather = { steady: 'steady weather', hourly: 'hourly series', windRose: 'wind rose' }[result.weatherKind];
-  const statistic = peak.statistic === 'mean' ? 'mean ' : '';
+  const weather = { steady: 'steady weather', hourly: 'hourly series', windRose: 'wind rose', screeningSet: 'screening weather set' }[result.weatherKind];
+  const statistic = { concentration: '', mean: 'mean ', maximum: 'highest hourly ' }[peak.statistic];
   const lines = [
     `${scenario.name}: ${scenario.pollutant.name}, ${result.mode} mode, ${weather}, ` +
       `grid ${result.grid.nx} x ${result.grid.ny} x ${result.grid.nz} at ${result.grid.spacing_m} m, ` +
@@ -243,6 +298,23 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
   if (levels.length === 0) lines.push('Footprint: no bands (the field is zero or flat)');
   else if (footprint.features.length === 0) lines.push(`Footprint: no ground reaches the lowest level, ${levels[0]} ug/m3`);
   else lines.push(`Footprint bands from ${levels.join(', ')} ug/m3 (the top band open-ended)`);
+  const areas = summary.footprint.areas.filter((entry) => entry.area_m2 > 0);
+  if (areas.length > 0) {
+    lines.push(
+      `Ground at or above each level${summary.footprint.levelsBasis ? ` (${summary.footprint.levelsBasis})` : ''}:`,
+      ...areas.map((entry) => {
+        const farthest = entry.farthest
+          .filter((f) => f.distance_m !== null)
+          .map((f) => `${f.distance_m} m from ${f.sourceId}`)
+          .join(', ');
+        const inside = entry.receptorsInside.length > 0 ? `; receptors inside: ${entry.receptorsInside.join(', ')}` : '';
+        return `  ${entry.level_ug_m3} ug/m3: ${entry.area_ha} ha, up to ${farthest}${entry.reachesGridEdge ? ' (reaches the grid edge: at least)' : ''}${inside}`;
+      }),
+    );
+  }
+  const verdicts = summary.verdicts as ScreeningVerdicts | undefined;
+  if (verdicts !== undefined && verdicts.standards.length > 0) lines.push(...verdictTable(verdicts));
+  for (const flag of result.downwash ?? []) if (flag.flagged) lines.push(`Building downwash: ${flag.message}`);
   lines.push(`Caution: ${SCREENING_CAUTION}`);
   return `${lines.join('\n')}\n`;
 }

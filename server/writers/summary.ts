@@ -8,10 +8,12 @@
  * are written as the driver gives them.
  */
 import { RESULT_FORMAT, type Scenario, type SolverMode } from '../../scenarios/format/types.ts';
-import type { MassBudget, ScenarioRunResult } from '../../solver/drivers/types.ts';
+import type { FootprintStatistic, MassBudget, ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
 import { sitePeak, type GroundPeak } from '../../solver/grid/siteBoundary.ts';
 import { SCREENING_CAUTION } from './caution.ts';
+import { footprintLevelAreas, roundVerdicts } from './assessmentFigures.ts';
+import type { LevelArea } from '../../solver/assessment/footprintAreas.ts';
 import {
   CONCENTRATION_SIGNIFICANT_FIGURES,
   LON_LAT_DECIMALS,
@@ -45,7 +47,7 @@ export interface SummaryPeak {
   x_m: number;
   y_m: number;
   /** what the field is: a steady concentration or a period mean */
-  statistic: 'concentration' | 'mean';
+  statistic: FootprintStatistic;
   /** where the peak was looked for: off the site (a boundary was given) or anywhere (it may be on the site) */
   where: string;
   /** the maximum on the site, labelled, when the scenario gives site.boundary */
@@ -84,7 +86,16 @@ export interface ResultSummary {
   sources: SummarySource[];
   peak: SummaryPeak;
   receptors: SummaryReceptor[];
-  footprint: { file: string; statistic: 'concentration' | 'mean'; height_m: number; levels_ug_m3: number[] };
+  footprint: {
+    file: string;
+    statistic: FootprintStatistic;
+    height_m: number;
+    levels_ug_m3: number[];
+    /** how the levels were chosen, when as percentages of a standard */
+    levelsBasis?: string;
+    /** per level: area [m2, ha], farthest distance from each source [m], receptors inside (2 significant figures) */
+    areas: LevelArea[];
+  };
   caution: string;
   notes: string[];
   [extra: string]: unknown;
@@ -93,6 +104,8 @@ export interface ResultSummary {
 export interface SummaryOptions {
   /** the footprint's levels, ascending [ug/m3] */
   levels_ug_m3?: number[];
+  /** how the levels were chosen, e.g. "1, 10, 50, 100 % of NO2 annual mean (EU 2008/50/EC), 40 ug/m3" */
+  levelsBasis?: string;
   /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_m */
   groundLevelHeight_m?: number;
 }
@@ -157,10 +170,14 @@ export function buildSummary(
       statistic: result.footprintStatistic,
       height_m: options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m,
       levels_ug_m3: [...(options.levels_ug_m3 ?? [])],
+      ...(options.levelsBasis !== undefined ? { levelsBasis: options.levelsBasis } : {}),
+      areas: footprintLevelAreas(scenario, result, options.levels_ug_m3 ?? []),
     },
     caution: SCREENING_CAUTION,
     notes: [...result.notes],
   };
+  if (result.verdicts !== undefined) summary.verdicts = roundVerdicts(result.verdicts);
+  if (result.downwash !== undefined) summary.downwash = result.downwash;
   for (const [key, value] of Object.entries(result.extraSummary)) {
     if (key in summary) {
       throw new Error(`extraSummary.${key}: would overwrite summary.json's own "${key}"; give it another name`);

@@ -18,6 +18,7 @@ import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario } from './steadyScenario.ts';
 import type { MassBudget, RunControl, ScenarioRunResult, SteadyRunInput } from './types.ts';
 import { assessmentPlan, type AssessmentPlan } from '../assessment/standards.ts';
 import { assessRun } from '../assessment/assessRun.ts';
+import { runScreeningSet } from '../assessment/screeningWeather.ts';
 
 /**
  * Input the scenario file passed its schema with but that cannot be run as given (a source outside the
@@ -122,6 +123,15 @@ async function dispatchByWeather(
     }
     case 'windRose':
       return runWindRose(seriesBaseInput(scenario, geometry), weather, {
+        mode,
+        site: scenario.site,
+        assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },
+        control,
+        solve: seriesSolvers ?? solve,
+        extraSummary: { domain: domainSummary },
+      });
+    case 'screeningSet':
+      return runScreeningSet(seriesBaseInput(scenario, geometry), weather, {
         mode,
         site: scenario.site,
         assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },

@@ -152,10 +152,13 @@ export interface ReceptorColumn {
   values: Float64Array;
 }
 
+/** What a ground-level field holds: one steady state, a mean over weather, or the highest hourly value. */
+export type FootprintStatistic = 'concentration' | 'mean' | 'maximum';
+
 /** What a whole scenario run (steady, hourly series or wind rose) hands to the result writers. */
 export interface ScenarioRunResult {
   mode: SolverMode;
-  weatherKind: 'steady' | 'hourly' | 'windRose';
+  weatherKind: 'steady' | 'hourly' | 'windRose' | 'screeningSet';
   grid: LocalGrid;
   sources: SourceReport[];
   massBudget_g: MassBudget | null;
@@ -164,8 +167,8 @@ export interface ScenarioRunResult {
   wallSeconds: number;
   /** the ground-level field the footprint is drawn from, index i + nx * j [ug/m3] */
   footprint_ug_m3: Float64Array;
-  /** what footprint_ug_m3 is: "concentration" (steady) or "mean" (series, rose) */
-  footprintStatistic: 'concentration' | 'mean';
+  /** what footprint_ug_m3 is: "concentration" (steady), "mean" (series, rose) or "maximum" (screening set) */
+  footprintStatistic: FootprintStatistic;
   receptorColumns: ReceptorColumn[];
   /** plain-language notes about what was and was not applied */
   notes: string[];
