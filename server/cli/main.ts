@@ -7,6 +7,7 @@ import { processIO, type CommandIO } from './io.ts';
 import { runCommand, type RunCommandOptions } from './run.ts';
 import { siteCommand } from './site.ts';
 import { validateCommand } from './validate.ts';
+import { compareCommand } from './compare.ts';
 
 export const MAIN_USAGE = `plumeplan: screening of planned emission sources (screening estimates only)
 
@@ -14,15 +15,17 @@ usage:
   plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
   plumeplan site SCENARIO --out DIR [--candidates FILE] [--site-polygon FILE] [options]
   plumeplan validate FILE [FILE...]
+  plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
   plumeplan --help | --version
 
 commands:
   run        run a scenario; write summary.json, receptors.csv and footprint.geojson into DIR
   site       map where on the site the stack least affects the receptors; rank candidate positions
   validate   check scenario files without running them
+  compare    run two scenarios and write how B differs from A
 
 Run "plumeplan COMMAND --help" for a command's options.
-Exit codes: 0 done, 2 invalid input, 1 internal failure.
+Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 `;
 
 /** The version in package.json. */
@@ -60,6 +63,8 @@ export async function main(argv: string[], io: CommandIO = processIO(), options:
         return await runCommand(rest, io, options);
       case 'site':
         return await siteCommand(rest, io, { solve: options.solve });
+      case 'compare':
+        return await compareCommand(rest, io, options);
       case 'validate':
         return await validateCommand(rest, {
           stdout: (text) => io.stdout.write(text),

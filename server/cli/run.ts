@@ -96,22 +96,10 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
   const progress = createProgressReporter(io.stderr, io.now);
   try {
     // A folder argument that names a file is caught now, not after a long run.
-    const existing = await stat(args.outDirectory).catch(() => null);
-    if (existing !== null && !existing.isDirectory()) {
-      io.stderr.write(`plumeplan run: --out: ${args.outDirectory} exists and is not a folder; give a folder for the results\n`);
-      return 2;
-    }
+    if (!(await checkOutFolder(args.outDirectory, io, 'run'))) return 2;
 
-    const outcome = await loadScenarioFile(args.scenarioPath);
-    if (!outcome.ok) {
-      const count = outcome.issues.length;
-      io.stderr.write(
-        `plumeplan run: ${args.scenarioPath} is not a valid scenario (${count} ${count === 1 ? 'issue' : 'issues'}):\n` +
-          `${indent(formatIssues(outcome.issues))}\n`,
-      );
-      return 2;
-    }
-    const scenario = outcome.scenario;
+    const scenario = await loadScenarioForCommand(args.scenarioPath, io, 'run');
+    if (scenario === null) return 2;
     const mode = args.mode ?? scenario.solver.mode;
     const levels = resolveLevels(scenario, args);
     if (typeof levels === 'string') {
@@ -119,29 +107,7 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
       return 2;
     }
 
-    // A single steady grid solve runs in a worker thread (the command stays responsive and Ctrl-C stops
-    // it at once). The many solves of an hour-by-hour series or a wind rose go to a pool of worker
-    // threads, one per core, each (grid mode) warm-starting from its own previous solves. Measured back
-    // to back on the demo year, two cores: Gaussian 75.5 s in process, 55.8 s in the pool.
-    const solve = options.solve ?? (scenario.weather.kind === 'steady' ? workerSteadySolver : undefined);
-    const pooled = options.solve === undefined && usesSeriesPool(scenario);
-    const pool = pooled ? createSeriesSolverPool() : null;
-    const interrupt = new AbortController();
-    const onInterrupt = (): void => interrupt.abort();
-    if (pool !== null) process.once('SIGINT', onInterrupt);
-    let result;
-    try {
-      result = await runScenario(scenario, {
-        mode,
-        solve,
-        seriesSolvers: pool?.solvers,
-        stepThreads: defaultSeriesThreads(),
-        control: { onProgress: (fraction, message) => progress.update(fraction, message), signal: pool !== null ? interrupt.signal : undefined },
-      });
-    } finally {
-      process.off('SIGINT', onInterrupt);
-      await pool?.close();
-    }
+    const result = await executeScenario(scenario, mode, (fraction, message) => progress.update(fraction, message), options.solve);
     progress.update(1, 'writing the result folder');
     const written = await writeResultFolder(args.outDirectory, scenario, result, levels);
     progress.finish();
@@ -149,7 +115,7 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
     return 0;
   } catch (error) {
     progress.finish();
-    return reportFailure(error, io);
+    return reportFailure(error, io, 'run');
   }
 }
 
@@ -176,6 +142,37 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
     percentOf: typeof options['percent-of'] === 'string' ? options['percent-of'] : undefined,
   };
+}
+
+/**
+ * Load a scenario file for a command, printing every issue (naming the file and the field) when it is
+ * not valid.
+ *
+ * @returns the scenario, or null after printing the issues (the command exits 2)
+ */
+export async function loadScenarioForCommand(scenarioPath: string, io: CommandIO, command: string): Promise<Scenario | null> {
+  const outcome = await loadScenarioFile(scenarioPath);
+  if (outcome.ok) return outcome.scenario;
+  const count = outcome.issues.length;
+  io.stderr.write(
+    `plumeplan ${command}: ${scenarioPath} is not a valid scenario (${count} ${count === 1 ? 'issue' : 'issues'}):\n` +
+      `${indent(formatIssues(outcome.issues))}\n`,
+  );
+  return null;
+}
+
+/**
+ * Refuse an output path that names a file, before any long run.
+ *
+ * @returns true when the path is free or a folder; false after printing the message (the command exits 2)
+ */
+export async function checkOutFolder(outDirectory: string, io: CommandIO, command: string): Promise<boolean> {
+  const existing = await stat(outDirectory).catch(() => null);
+  if (existing !== null && !existing.isDirectory()) {
+    io.stderr.write(`plumeplan ${command}: --out: ${outDirectory} exists and is not a folder; give a folder for the results\n`);
+    return false;
+  }
+  return true;
 }
 
 /** Default percentages of a standard's limit for --percent-of without --levels [%]. */
@@ -211,6 +208,44 @@ export function resolveLevels(
   };
 }
 
+/**
+ * Run a loaded scenario the way the command line does: a single steady grid solve in a worker thread
+ * (the command stays responsive and Ctrl-C stops it at once); the many solves of an hour-by-hour series,
+ * a wind rose or the screening weather set in a pool of worker threads, one per core, each (grid mode)
+ * warm-starting from its own previous solves (measured back to back on the demo year, two cores:
+ * Gaussian 75.5 s in process, 55.8 s in the pool). Ctrl-C aborts with an AbortError.
+ *
+ * @param scenario a parsed scenario
+ * @param mode the solver mode
+ * @param onProgress progress callback
+ * @param solve a steady solver to use instead (tests); no pool then
+ */
+export async function executeScenario(
+  scenario: Scenario,
+  mode: SolverMode,
+  onProgress: (fraction: number, message: string) => void,
+  solve?: SteadySolver,
+): Promise<ScenarioRunResult> {
+  const steadySolve = solve ?? (scenario.weather.kind === 'steady' ? workerSteadySolver : undefined);
+  const pooled = solve === undefined && usesSeriesPool(scenario);
+  const pool = pooled ? createSeriesSolverPool() : null;
+  const interrupt = new AbortController();
+  const onInterrupt = (): void => interrupt.abort();
+  if (pool !== null) process.once('SIGINT', onInterrupt);
+  try {
+    return await runScenario(scenario, {
+      mode,
+      solve: steadySolve,
+      seriesSolvers: pool?.solvers,
+      stepThreads: defaultSeriesThreads(),
+      control: { onProgress, signal: pool !== null ? interrupt.signal : undefined },
+    });
+  } finally {
+    process.off('SIGINT', onInterrupt);
+    await pool?.close();
+  }
+}
+
 /** Whether a run makes many steady solves (a pool of worker threads takes them). */
 function usesSeriesPool(scenario: Scenario): boolean {
   const weather = scenario.weather;
@@ -238,23 +273,27 @@ export const workerSteadySolver: SteadySolver = async (input, mode, control = {}
   }
 };
 
-/** Exit code and message for an error thrown while running. */
-function reportFailure(error: unknown, io: CommandIO): number {
+/**
+ * Exit code and message for an error thrown while running a command.
+ *
+ * @param command the command's name for the message, e.g. "run" or "compare"
+ */
+export function reportFailure(error: unknown, io: CommandIO, command: string): number {
   if (error instanceof Error && error.name === 'AbortError') {
-    io.stderr.write('plumeplan run: interrupted; no results written\n');
+    io.stderr.write(`plumeplan ${command}: interrupted; no results written\n`);
     return INTERRUPTED_EXIT_CODE;
   }
   if (error instanceof ScenarioInputError) {
-    io.stderr.write(`plumeplan run: invalid scenario: ${error.message}\n`);
+    io.stderr.write(`plumeplan ${command}: invalid scenario: ${error.message}\n`);
     return 2;
   }
   if (error instanceof UnavailableError) {
     const suggestion = error.alternativeMode === null ? '' : `; use --mode ${error.alternativeMode} meanwhile`;
-    io.stderr.write(`plumeplan run: ${error.message}${suggestion}\n`);
+    io.stderr.write(`plumeplan ${command}: ${error.message}${suggestion}\n`);
     return 1;
   }
   const message = error instanceof Error ? error.message : String(error);
-  io.stderr.write(`plumeplan run: internal failure: ${message}\n`);
+  io.stderr.write(`plumeplan ${command}: internal failure: ${message}\n`);
   if (io.env.PLUMEPLAN_DEBUG === '1' && error instanceof Error && error.stack !== undefined) {
     io.stderr.write(`${error.stack}\n`);
   } else {

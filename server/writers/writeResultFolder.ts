@@ -193,7 +193,7 @@ function standardFootprints(scenario: Scenario, result: ScenarioRunResult, heigh
  * footprint.geojson's text: the collection's properties indented for reading, then one feature per line
  * (a band's coordinates run to thousands of numbers, which would be unreadable one per line).
  */
-export function formatFootprint(collection: FootprintCollection): string {
+export function formatFootprint(collection: Pick<FootprintCollection, 'properties'> & { features: readonly unknown[] } | { properties: object; features: readonly unknown[] }): string {
   const properties = JSON.stringify(collection.properties, null, 2).replaceAll('\n', '\n  ');
   const features = collection.features.map((feature) => `    ${JSON.stringify(feature)}`).join(',\n');
   return (
