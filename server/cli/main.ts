@@ -8,6 +8,8 @@ import { runCommand, type RunCommandOptions } from './run.ts';
 import { siteCommand } from './site.ts';
 import { validateCommand } from './validate.ts';
 import { compareCommand } from './compare.ts';
+import { sweepCommand } from './sweep.ts';
+import { stackHeightCommand } from './stackHeight.ts';
 
 export const MAIN_USAGE = `plumeplan: screening of planned emission sources (screening estimates only)
 
@@ -16,6 +18,8 @@ usage:
   plumeplan site SCENARIO --out DIR [--candidates FILE] [--site-polygon FILE] [options]
   plumeplan validate FILE [FILE...]
   plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+  plumeplan sweep SCENARIO --parameter NAME --values V1,V2,... --out DIR [--source ID]
+  plumeplan stack-height SCENARIO --out DIR (--target UG_M3 | --target-percent P --standard NAME)
   plumeplan --help | --version
 
 commands:
@@ -23,6 +27,8 @@ commands:
   site       map where on the site the stack least affects the receptors; rank candidate positions
   validate   check scenario files without running them
   compare    run two scenarios and write how B differs from A
+  sweep      run one parameter over a list of values: table and chart of PC against it
+  stack-height  the lowest stack height at which the highest PC falls below a target
 
 Run "plumeplan COMMAND --help" for a command's options.
 Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
@@ -65,6 +71,10 @@ export async function main(argv: string[], io: CommandIO = processIO(), options:
         return await siteCommand(rest, io, { solve: options.solve });
       case 'compare':
         return await compareCommand(rest, io, options);
+      case 'sweep':
+        return await sweepCommand(rest, io);
+      case 'stack-height':
+        return await stackHeightCommand(rest, io);
       case 'validate':
         return await validateCommand(rest, {
           stdout: (text) => io.stdout.write(text),
