@@ -90,6 +90,15 @@ function readSweepArguments(argv: string[]): SweepArguments | 'help' {
   };
 }
 
+/** The members as an aligned table: the value, the highest ground PC, each receptor's PC (3 significant figures). */
+function memberTable(sweep: SweepResult): string[] {
+  const figure = (value: number): string => String(Number(value.toPrecision(3)));
+  const header = [`${sweep.parameter} [${sweep.unit}]`, 'ground max ug/m3', ...sweep.receptorIds];
+  const rows = sweep.members.map((m) => [String(m.value), figure(m.groundMax_ug_m3), ...m.receptors_ug_m3.map(figure)]);
+  const widths = header.map((title, c) => Math.max(title.length, ...rows.map((row) => row[c].length)));
+  return [header, ...rows].map((row) => `  ${row.map((cell, c) => cell.padEnd(widths[c])).join('  ').trimEnd()}`);
+}
+
 /** Run `plumeplan sweep`; returns the exit code. */
 export async function sweepCommand(argv: string[], io: CommandIO): Promise<number> {
   let args: SweepArguments | 'help';
@@ -138,8 +147,8 @@ export async function sweepCommand(argv: string[], io: CommandIO): Promise<numbe
     io.stdout.write(
       `${scenario.name}: ${sweep.members.length} values of ${sweep.parameter}${sweep.sourceId ? ` (${sweep.sourceId})` : ''}, ${sweep.runs} ${sweep.runs === 1 ? 'run' : 'runs'}, ${mode} mode\n` +
         `Results written to ${path.resolve(args.outDirectory)}: ${files.map(([name]) => name).join(', ')}\n` +
-        sweepCsv(sweep).replaceAll('\r\n', '\n').split('\n').filter((line) => line !== '').map((line) => `  ${line.replaceAll(',', '  ')}`).join('\n') +
-        `\nCaution: ${SCREENING_CAUTION}\n`,
+        `${memberTable(sweep).join('\n')}\n` +
+        `Caution: ${SCREENING_CAUTION}\n`,
     );
     return 0;
   } catch (error) {

@@ -106,6 +106,8 @@ export interface ChartSeries {
 
 export interface LineChartOptions {
   title: string;
+  /** a second, smaller line under the title (the scenario's name) */
+  subtitle?: string;
   xLabel: string;
   yLabel: string;
   /** a horizontal line, e.g. the target */
@@ -141,7 +143,7 @@ export function lineChartSvg(series: readonly ChartSeries[], options: LineChartO
   const height = 480;
   const left = 80;
   const right = 190;
-  const top = 50;
+  const top = 60;
   const bottom = 110;
   const plotW = width - left - right;
   const plotH = height - top - bottom;
@@ -157,7 +159,8 @@ export function lineChartSvg(series: readonly ChartSeries[], options: LineChartO
     `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="sans-serif" font-size="12">`,
     `<title>${escapeXml(options.title)}</title>`,
     `<rect width="${width}" height="${height}" fill="#ffffff"/>`,
-    `<text x="${left}" y="28" font-size="15" font-weight="bold">${escapeXml(options.title)}</text>`,
+    `<text x="${left}" y="24" font-size="15" font-weight="bold">${escapeXml(options.title)}</text>`,
+    ...(options.subtitle ? [`<text x="${left}" y="41" font-size="11" fill="#444">${escapeXml(options.subtitle)}</text>`] : []),
     `<line x1="${left}" y1="${top + plotH}" x2="${left + plotW}" y2="${top + plotH}" stroke="#333"/>`,
     `<line x1="${left}" y1="${top}" x2="${left}" y2="${top + plotH}" stroke="#333"/>`,
   ];
@@ -211,7 +214,8 @@ export function sweepSvg(sweep: SweepResult, scenarioName: string): string {
     ...sweep.receptorIds.map((id, r) => ({ name: id, points: sweep.members.map((m) => ({ x: m.value, y: m.receptors_ug_m3[r] })) })),
   ];
   return lineChartSvg(series, {
-    title: `${scenarioName}: PC against ${sweep.parameter}`,
+    title: `Process contribution against ${sweep.parameter}`,
+    subtitle: scenarioName,
     xLabel: `${sweep.description}${sweep.sourceId ? ` (${sweep.sourceId})` : ''} [${sweep.unit}]`,
     yLabel: `process contribution, ${sweep.statistic} [ug/m3]`,
   });
@@ -220,7 +224,8 @@ export function sweepSvg(sweep: SweepResult, scenarioName: string): string {
 /** stack-height.svg: the highest PC against stack height, the target and the answer. */
 export function stackHeightSvg(result: StackHeightResult, scenarioName: string): string {
   return lineChartSvg([{ name: result.at === 'ground' ? 'highest on the ground' : `highest at ${result.at.join(', ')}`, points: result.curve.map((p) => ({ x: p.height_m, y: p.pc_ug_m3 })) }], {
-    title: `${scenarioName}: highest PC against the height of ${result.sourceId}`,
+    title: `Highest process contribution against the height of ${result.sourceId}`,
+    subtitle: scenarioName,
     xLabel: 'stack height [m]',
     yLabel: `${result.standard ?? 'process contribution'} [ug/m3]`,
     reference: { y: result.target_ug_m3, label: `target ${result.target_ug_m3} ug/m3` },

@@ -253,3 +253,4 @@ async function steadySection(): Promise<void> {
 await main();
 await import('./weather.ts'); // weather benchmarks: the demo met year hour by hour, a continuous week (tests/bench/weather.ts)
 await import('./server.ts'); // server benchmarks: API reads while two runs compute, the event loop's longest stall (tests/bench/server.ts)
+await import('./assessment.ts'); // the screening weather set on the demo, a 10-member stack-height sweep (tests/bench/assessment.ts)
