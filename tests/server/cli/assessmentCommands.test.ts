@@ -3,6 +3,7 @@
  * option (exit 2), and small Gaussian runs writing their folders with the caution; run's --percent-of.
  * comparison.json's receptors follow the issue's contract {id, a_ug_m3, b_ug_m3, delta_ug_m3, change_pct}.
  */
+import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -80,6 +81,26 @@ describe('plumeplan compare, sweep, stack-height', () => {
     const difference = JSON.parse(readFileSync(path.join(out, 'difference.geojson'), 'utf8'));
     expect(difference.features).toEqual([]);
     expect(JSON.parse(readFileSync(path.join(out, 'a', 'summary.json'), 'utf8')).caution).toBe(SCREENING_CAUTION);
+  });
+
+  it('writes a difference footprint that GDAL reads (RFC 7946; Debian gdal-bin ogrinfo) when the stack rises', async () => {
+    const out = path.join(scratch, 'compare-taller');
+    const c = capture();
+    const a = smallDemo();
+    const b = smallDemo((s) => (s.sources[0].height_m = 50));
+    expect(await main(['compare', a, b, '--out', out, '--levels', '0.5,1,2'], c.io, {})).toBe(0);
+    const json = JSON.parse(readFileSync(path.join(out, 'comparison.json'), 'utf8'));
+    expect(json.identical).toBe(false);
+    expect(json.levels.areas.map((l: { level_ug_m3: number }) => l.level_ug_m3)).toEqual([0.5, 1, 2]);
+    const difference = JSON.parse(readFileSync(path.join(out, 'difference.geojson'), 'utf8'));
+    expect(difference.properties.caution).toBe(SCREENING_CAUTION);
+    expect(difference.features.some((f: { properties: { change: string } }) => f.properties.change === 'decrease')).toBe(true);
+    const ogr = execFileSync('ogrinfo', ['-ro', '-al', '-so', path.join(out, 'difference.geojson')], { encoding: 'utf8' });
+    expect(ogr).toMatch(/using driver `GeoJSON' successful/);
+    // Polygon and MultiPolygon bands together: GDAL reports the layer's geometry as "Unknown (any)"
+    expect(ogr).toMatch(/Geometry: (Multi )?Polygon|Geometry: Unknown \(any\)/);
+    expect(ogr).toMatch(/change: String/);
+    expect(ogr).toMatch(/Feature Count: [1-9]/);
   });
 
   it('writes a sweep table, chart and JSON, and a stack height with its curve', async () => {
