@@ -54,6 +54,7 @@ export function assessRun(
       weatherKind: result.weatherKind,
       grid: result.grid,
       receptors,
+      site: result.site ?? null,
     });
   }
   const flags = downwashFlags(scenario.sources);

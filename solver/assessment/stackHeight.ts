@@ -13,6 +13,7 @@
 import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
 import type { RunControl, ScenarioRunResult } from '../drivers/types.ts';
 import { downwashFlags, type DownwashFlag } from './downwash.ts';
+import { sitePeak } from '../grid/siteBoundary.ts';
 import { applySweepValue, sweptSourceId, withFixedDomain, type MemberRunner } from './sweep.ts';
 
 export interface StackHeightSpec {
@@ -20,7 +21,7 @@ export interface StackHeightSpec {
   sourceId?: string;
   /** the PC the stack must bring the highest figure below [ug/m3] */
   target_ug_m3: number;
-  /** where the highest PC is taken: "ground" (the ground-level field) or receptor ids */
+  /** where the highest PC is taken: "ground" (the ground-level field, off the site when a boundary is given) or receptor ids */
   at: 'ground' | readonly string[];
   /** compare this assessed standard's figure (the assessed pollutant) instead of the run's own field */
   standard?: string;
@@ -86,8 +87,8 @@ export function highestPc(result: ScenarioRunResult, receptorIds: readonly strin
   let highest = 0;
   if (spec.at === 'ground') {
     if (ground === null) throw new RangeError(`at: the standard ${JSON.stringify(spec.standard)} has no ground map for this weather; choose receptors`);
-    for (let c = 0; c < ground.length; c++) if (ground[c] > highest) highest = ground[c];
-    return highest;
+    // off the site when the scenario gives a boundary (../grid/siteBoundary.ts)
+    return sitePeak(result.grid, ground, result.site ?? null).value_ug_m3;
   }
   for (const id of spec.at) {
     const r = receptorIds.indexOf(id);

@@ -13,6 +13,7 @@
  */
 import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
 import { prepareScenarioGeometry } from '../grid/scenarioGeometry.ts';
+import { sitePeak } from '../grid/siteBoundary.ts';
 import type { RunControl, ScenarioRunResult } from '../drivers/types.ts';
 
 /** The parameters a sweep can vary, with their units. */
@@ -41,7 +42,7 @@ export interface SweepSpec {
 /** One member's figures. */
 export interface SweepMember {
   value: number;
-  /** the highest value of the run's ground field (its footprint statistic) [ug/m3] */
+  /** the highest value of the run's ground field (its footprint statistic), off the site when a boundary is given [ug/m3] */
   groundMax_ug_m3: number;
   groundMaxAt: { x_m: number; y_m: number };
   /** the run's first receptor figure at each receptor [ug/m3] */
@@ -247,21 +248,17 @@ export function isLinearSweep(scenario: Scenario, parameter: SweepParameter, sou
 
 /** A run's figures, scaled by a factor. */
 function figuresOf(result: ScenarioRunResult, scale: number): Omit<SweepMember, 'value'> {
-  const field = result.footprint_ug_m3;
-  let best = 0;
-  for (let c = 1; c < field.length; c++) if (field[c] > field[best]) best = c;
-  const { grid } = result;
-  const i = best % grid.nx;
-  const j = (best - i) / grid.nx;
+  // off the site when the scenario gives a boundary (../grid/siteBoundary.ts)
+  const peak = sitePeak(result.grid, result.footprint_ug_m3, result.site ?? null);
   const column = result.receptorColumns[0]?.values ?? new Float64Array(0);
   return {
-    groundMax_ug_m3: scale * (field[best] ?? 0),
-    groundMaxAt: { x_m: grid.xWest_m + (i + 0.5) * grid.spacing_m, y_m: grid.ySouth_m + (j + 0.5) * grid.spacing_m },
+    groundMax_ug_m3: scale * peak.value_ug_m3,
+    groundMaxAt: { x_m: peak.x_m, y_m: peak.y_m },
     receptors_ug_m3: Array.from(column, (value) => scale * value),
     standards: (result.standardFields ?? []).map((standard) => {
-      const values = standard.ground_ug_m3 ?? standard.receptors_ug_m3;
       let max = 0;
-      for (const value of values) if (value > max) max = value;
+      if (standard.ground_ug_m3 !== null) max = sitePeak(result.grid, standard.ground_ug_m3, result.site ?? null).value_ug_m3;
+      else for (const value of standard.receptors_ug_m3) if (value > max) max = value;
       return { name: standard.name, max_ug_m3: scale * max, receptors_ug_m3: Array.from(standard.receptors_ug_m3, (value) => scale * value) };
     }),
   };

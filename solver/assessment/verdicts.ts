@@ -21,6 +21,7 @@
 import type { ScreeningThresholds, SolverMode } from '../../scenarios/format/types.ts';
 import type { PlacedReceptor, StandardField, StandardFieldBasis } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
+import { sitePeak, type SiteColumns } from '../grid/siteBoundary.ts';
 import type { AssessedStandard, AssessmentPlan } from './standards.ts';
 import { NOX_TO_NO2_SOURCE } from './standards.ts';
 
@@ -65,6 +66,8 @@ export interface ReceptorVerdict extends PointVerdict {
 /** The point of maximum impact: the highest PC on the ground grid (or, without a ground map, over the receptors). */
 export interface MaximumVerdict extends PointVerdict {
   where: 'ground' | 'receptors';
+  /** for the ground: off the site (a boundary was given) or anywhere (it may be on the site) */
+  searched?: string;
   /** local position of the grid cell's centre or the receptor [m] */
   x_m: number;
   y_m: number;
@@ -111,6 +114,8 @@ export interface VerdictRunContext {
   mode?: SolverMode;
   grid: Pick<LocalGrid, 'nx' | 'ny' | 'spacing_m' | 'xWest_m' | 'ySouth_m'>;
   receptors: readonly Pick<PlacedReceptor, 'id' | 'x_m' | 'y_m'>[];
+  /** the site boundary's columns: the maximum on the ground is then taken off the site */
+  site?: SiteColumns | null;
 }
 
 const BASIS_NOTES: Readonly<Record<StandardFieldBasis, string>> = {
@@ -222,7 +227,7 @@ export function screeningVerdicts(plan: AssessmentPlan, fields: readonly Standar
   };
 }
 
-/** The point of maximum impact: the largest ground value (cell centre), else the largest receptor value. */
+/** The point of maximum impact: the largest ground value (cell centre; off the site when a boundary is given), else the largest receptor value. */
 function maximumVerdict(
   field: StandardField,
   context: VerdictRunContext,
@@ -230,17 +235,9 @@ function maximumVerdict(
 ): MaximumVerdict | undefined {
   const { grid } = context;
   if (field.ground_ug_m3 !== null && field.ground_ug_m3.length > 0) {
-    const ground = field.ground_ug_m3;
-    let best = 0;
-    for (let c = 1; c < ground.length; c++) if (ground[c] > ground[best]) best = c;
-    const i = best % grid.nx;
-    const j = (best - i) / grid.nx;
-    return {
-      where: 'ground',
-      x_m: grid.xWest_m + (i + 0.5) * grid.spacing_m,
-      y_m: grid.ySouth_m + (j + 0.5) * grid.spacing_m,
-      ...verdictAt(ground[best]),
-    };
+    // off the site when a boundary is given: nobody of the public stands inside it (../grid/siteBoundary.ts)
+    const peak = sitePeak(grid, field.ground_ug_m3, context.site ?? null);
+    return { where: 'ground', searched: peak.where, x_m: peak.x_m, y_m: peak.y_m, ...verdictAt(peak.value_ug_m3) };
   }
   if (context.receptors.length === 0) return undefined;
   let best = 0;
