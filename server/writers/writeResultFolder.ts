@@ -166,12 +166,14 @@ export const STANDARD_MAP_PERCENTAGES = [1, 10, 50, 100] as const;
 /**
  * A map of each standard's statistic on the ground (the annual mean, the percentile the allowed
  * exceedances imply, or the screening set's upper bound), as bands at 1, 10, 50 and 100 % of its limit.
+ * Steady weather gets none: its hourly PC is the footprint itself.
  */
 function standardFootprints(scenario: Scenario, result: ScenarioRunResult, height_m: number) {
   const verdictOf = new Map((result.verdicts?.standards ?? []).map((v) => [v.name, v]));
   const used = new Set<string>();
   return (result.standardFields ?? [])
-    .filter((field) => field.ground_ug_m3 !== null && verdictOf.has(field.name))
+    // one steady state's hourly PC is no standard's statistic (verdicts call it indicative): no map for it
+    .filter((field) => field.ground_ug_m3 !== null && field.basis !== 'oneWeatherHour' && verdictOf.has(field.name))
     .map((field) => {
       const verdict = verdictOf.get(field.name)!;
       const levels = levelsFromPercentages(STANDARD_MAP_PERCENTAGES, verdict.limit_ug_m3);

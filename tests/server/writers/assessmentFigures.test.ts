@@ -57,10 +57,21 @@ describe('assessment figures in the result folder', () => {
       expect(entry.area_ha).toBe(Number((entry.area_m2 / 10_000).toPrecision(2)));
       expect(String(entry.area_m2).replace(/0+$/, '').length).toBeLessThanOrEqual(2);
     }
-    // the standard's map
+    // steady weather: no standard maps (the hourly PC is the footprint itself)
+    expect(written.files.filter((name) => name.startsWith('standard-'))).toEqual([]);
+  });
+
+  it('maps each standard on the ground for the screening weather set, in GeoJSON that ogrinfo reads', async () => {
+    const raw = demoWithLibrary();
+    const scenario = { ...raw, domain: { ...raw.domain!, spacing_m: 300 }, weather: { kind: 'screeningSet' as const, sectors: 4, rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10 } };
+    const result = await runScenario(scenario, {});
+    const directory = path.join(scratch, 'screening');
+    const written = await writeResultFolder(directory, scenario, result);
     const mapFile = 'standard-no2-1-hour-mean-eu-2008-50-ec.geojson';
     expect(written.files).toContain(mapFile);
+    expect(written.files).toContain('standard-no2-annual-mean-eu-2008-50-ec.geojson');
     const map = JSON.parse(readFileSync(path.join(directory, mapFile), 'utf8'));
+    expect(map.properties.standard).toMatchObject({ basis: 'upperBound', limit_ug_m3: 200, levelsPercentOfLimit: [1, 10, 50, 100] });
     expect(map.type).toBe('FeatureCollection');
     expect(map.properties.caution).toBe(SCREENING_CAUTION);
     expect(map.properties.levels_ug_m3).toEqual([2, 20, 100, 200]);
