@@ -1,5 +1,6 @@
 /**
- * The `plumeplan` command line: dispatches to `run`, `site` and `validate`, answers `--help` and `--version`.
+ * The `plumeplan` command line: dispatches to `run`, `site`, `validate`, `compare`, `sweep` and `stack-height`,
+ * answers `--help` and `--version`.
  * `bin/plumeplan.mjs` calls `main` and sets the process exit code from its result.
  */
 import { readFileSync } from 'node:fs';
