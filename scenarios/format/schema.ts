@@ -15,8 +15,10 @@
 import { area as turfArea, kinks as turfKinks, polygon as turfPolygon } from '@turf/turf';
 import { z } from 'zod';
 import {
+  LIBRARY_POLLUTANTS,
   SCENARIO_FORMAT,
   STABILITY_CLASSES,
+  STANDARD_SETS,
   type Scenario,
 } from './types.ts';
 
@@ -603,11 +605,27 @@ const windRoseWeatherSchema = strictObject(
   }
 });
 
+/** Default sectors of the screening weather set: every 10 deg (common practice for screening). */
+export const SCREENING_SET_DEFAULT_SECTORS = 36;
+
+const screeningSetWeatherSchema = strictObject(
+  {
+    kind: z.literal('screeningSet'),
+    sectors: quantity({ integer: true, atLeast: 1, atMost: 360 }, null, 'wind-direction sectors, evenly spaced from north').default(
+      SCREENING_SET_DEFAULT_SECTORS,
+    ),
+    rain_mm_h: rainSchema,
+    airTemperature_K: airTemperatureSchema,
+    anemometerHeight_m: anemometerHeightSchema,
+  },
+  'the screening weather set: every stability class with its wind speeds, from every sector',
+);
+
 const weatherSchema = z
-  .discriminatedUnion('kind', [steadyWeatherSchema, hourlyWeatherSchema, windRoseWeatherSchema], {
-    error: 'must be one of "steady", "hourly", "windRose"',
+  .discriminatedUnion('kind', [steadyWeatherSchema, hourlyWeatherSchema, windRoseWeatherSchema, screeningSetWeatherSchema], {
+    error: 'must be one of "steady", "hourly", "windRose", "screeningSet"',
   })
-  .describe('the weather: a steady state, an hourly series or a wind rose');
+  .describe('the weather: a steady state, an hourly series, a wind rose or the screening weather set');
 
 // ---------------------------------------------------------------------------------------------
 // Dispersion, solver
@@ -654,6 +672,15 @@ const solverSchema = strictObject(
 // Sources and receptors
 // ---------------------------------------------------------------------------------------------
 
+const buildingSchema = strictObject(
+  {
+    height_m: quantity({ above: 0 }, 'm', 'building height above ground'),
+    width_m: quantity({ above: 0 }, 'm', 'building width across the wind'),
+    distance_m: quantity({ atLeast: 0 }, 'm', 'distance from the stack to the nearest wall'),
+  },
+  'a building beside the stack, for the downwash flag',
+);
+
 const pointSourceSchema = strictObject(
   {
     kind: z.literal('point'),
@@ -667,6 +694,7 @@ const pointSourceSchema = strictObject(
     exitTemperature_K: quantity({ above: 0 }, 'K', 'exit temperature'),
     emission_g_s: quantity({ atLeast: 0 }, 'g/s', 'emission rate'),
     plumeRise: flag('false: release at height_m exactly').default(true),
+    building: buildingSchema.optional(),
   },
   'a point source (stack)',
 ).transform((source) => ({ ...source, name: source.name ?? source.id }));
@@ -760,7 +788,24 @@ const standardSchema = strictObject(
 const assessmentSchema = strictObject(
   {
     background_ug_m3: quantity({ atLeast: 0 }, 'ug/m3', 'background concentration added to the process contribution'),
-    standards: list(standardSchema, 'air-quality standards').superRefine(requireUnique('name', 'standards')),
+    standards: list(standardSchema, 'user-defined air-quality standards').superRefine(requireUnique('name', 'standards')).default([]),
+    libraryPollutant: choice(LIBRARY_POLLUTANTS, 'a pollutant of the library whose standards apply').optional(),
+    standardSets: list(choice(STANDARD_SETS, 'a set of standards in the library'), 'sets of standards', 1).optional(),
+    noxToNo2: strictObject(
+      {
+        longTerm: quantity({ above: 0, atMost: 1 }, null, 'fraction of NOx taken as NO2 for long-term statistics'),
+        shortTerm: quantity({ above: 0, atMost: 1 }, null, 'fraction of NOx taken as NO2 for short-term statistics'),
+      },
+      'NOx to NO2 ratios (common practice in screening)',
+    ).optional(),
+    screening: strictObject(
+      {
+        pcLongTerm_pct: quantity({ above: 0, atMost: 100 }, '%', 'PC below this share of a long-term standard is insignificant'),
+        pcShortTerm_pct: quantity({ above: 0, atMost: 100 }, '%', 'PC below this share of a short-term standard is insignificant'),
+        pecLongTerm_pct: quantity({ above: 0, atMost: 100 }, '%', 'second stage: PEC below this share of a long-term standard'),
+      },
+      'thresholds of the two-stage screen (common practice in permit guidance, not a legal test)',
+    ).optional(),
   },
   'background and the standards to assess against',
 );

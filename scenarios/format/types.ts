@@ -137,7 +137,24 @@ export interface WindRoseWeather {
   anemometerHeight_m: number;
 }
 
-export type Weather = SteadyWeather | HourlyWeather | WindRoseWeather;
+/**
+ * The screening weather set: plumeplan's built-in list of steady states (every stability class with the
+ * wind speeds that class occurs with, from every direction sector), run as one job for the highest
+ * hourly process contribution. The set itself is in solver/assessment/screeningWeather.ts.
+ */
+export interface ScreeningSetWeather {
+  kind: 'screeningSet';
+  /** wind-direction sectors, evenly spaced from north (36 = every 10 deg) */
+  sectors: number;
+  /** rain rate applied to every state [mm/h] */
+  rain_mm_h: number;
+  /** air temperature near the ground [K] */
+  airTemperature_K: number;
+  /** height of the wind speeds of the set [m] */
+  anemometerHeight_m: number;
+}
+
+export type Weather = SteadyWeather | HourlyWeather | WindRoseWeather | ScreeningSetWeather;
 
 export type GaussianCurves = 'briggs' | 'pasquill-gifford';
 
@@ -174,6 +191,18 @@ export interface PointSource {
   emission_g_s: number;
   /** false: release at height_m exactly */
   plumeRise: boolean;
+  /** the nearest building beside the stack, for the downwash flag (solver/assessment/downwash.ts) */
+  building?: Building;
+}
+
+/** A building beside a stack: enough to tell whether the stack stands in its wake. */
+export interface Building {
+  /** height above ground [m] */
+  height_m: number;
+  /** width across the wind (the larger horizontal side when unsure) [m] */
+  width_m: number;
+  /** distance from the stack to the nearest wall [m] */
+  distance_m: number;
 }
 
 export interface AreaSource {
@@ -213,9 +242,44 @@ export interface AirQualityStandard {
   runningMean?: boolean;
 }
 
+/** Pollutants whose standards plumeplan's library holds (solver/assessment/pollutantLibrary.ts). */
+export const LIBRARY_POLLUTANTS = ['NOx', 'NO2', 'PM10', 'PM2.5', 'SO2', 'CO', 'benzene', 'NH3'] as const;
+export type LibraryPollutant = (typeof LIBRARY_POLLUTANTS)[number];
+
+/** The sets of standards in the library: the instrument each value comes from. */
+export const STANDARD_SETS = ['eu-2008-50-ec', 'eu-2024-2881', 'who-2021', 'unece-2007'] as const;
+export type StandardSet = (typeof STANDARD_SETS)[number];
+
+/** Fractions of NOx taken as NO2 when NOx is emitted and NO2 is assessed (common practice in screening). */
+export interface NoxToNo2 {
+  /** for long-term statistics (annual means) [-] */
+  longTerm: number;
+  /** for short-term statistics (hourly and daily) [-] */
+  shortTerm: number;
+}
+
+/** Thresholds of the two-stage screen of a process contribution (common practice in permit guidance). */
+export interface ScreeningThresholds {
+  /** PC below this share of a long-term standard is insignificant [%] */
+  pcLongTerm_pct: number;
+  /** PC below this share of a short-term standard is insignificant [%] */
+  pcShortTerm_pct: number;
+  /** second stage: PEC below this share of a long-term standard [%] */
+  pecLongTerm_pct: number;
+}
+
 export interface Assessment {
   background_ug_m3: number;
+  /** user-defined standards, assessed beside the library's */
   standards: AirQualityStandard[];
+  /** a pollutant of the library whose standards apply; absent = only `standards` */
+  libraryPollutant?: LibraryPollutant;
+  /** the library's sets to take standards from; absent = every set that has the pollutant */
+  standardSets?: StandardSet[];
+  /** NOx to NO2 ratios when libraryPollutant is "NOx"; absent = the defaults in solver/assessment/standards.ts */
+  noxToNo2?: NoxToNo2;
+  /** thresholds of the screen; absent = the defaults in solver/assessment/verdicts.ts */
+  screening?: ScreeningThresholds;
 }
 
 export interface Scenario {

@@ -1,5 +1,6 @@
 /**
- * The `plumeplan` command line: dispatches to `run`, `site` and `validate`, answers `--help` and `--version`.
+ * The `plumeplan` command line: dispatches to `run`, `site`, `validate`, `compare`, `sweep` and `stack-height`,
+ * answers `--help` and `--version`.
  * `bin/plumeplan.mjs` calls `main` and sets the process exit code from its result.
  */
 import { readFileSync } from 'node:fs';
@@ -7,6 +8,9 @@ import { processIO, type CommandIO } from './io.ts';
 import { runCommand, type RunCommandOptions } from './run.ts';
 import { siteCommand } from './site.ts';
 import { validateCommand } from './validate.ts';
+import { compareCommand } from './compare.ts';
+import { sweepCommand } from './sweep.ts';
+import { stackHeightCommand } from './stackHeight.ts';
 
 export const MAIN_USAGE = `plumeplan: screening of planned emission sources (screening estimates only)
 
@@ -14,15 +18,21 @@ usage:
   plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
   plumeplan site SCENARIO --out DIR [--candidates FILE] [--site-polygon FILE] [options]
   plumeplan validate FILE [FILE...]
+  plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+  plumeplan sweep SCENARIO --parameter NAME --values V1,V2,... --out DIR [--source ID]
+  plumeplan stack-height SCENARIO --out DIR (--target UG_M3 | --target-percent P --standard NAME)
   plumeplan --help | --version
 
 commands:
   run        run a scenario; write summary.json, receptors.csv and footprint.geojson into DIR
   site       map where on the site the stack least affects the receptors; rank candidate positions
   validate   check scenario files without running them
+  compare    run two scenarios and write how B differs from A
+  sweep      run one parameter over a list of values: table and chart of PC against it
+  stack-height  the lowest stack height at which the highest PC falls below a target
 
 Run "plumeplan COMMAND --help" for a command's options.
-Exit codes: 0 done, 2 invalid input, 1 internal failure.
+Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 `;
 
 /** The version in package.json. */
@@ -60,6 +70,12 @@ export async function main(argv: string[], io: CommandIO = processIO(), options:
         return await runCommand(rest, io, options);
       case 'site':
         return await siteCommand(rest, io, { solve: options.solve });
+      case 'compare':
+        return await compareCommand(rest, io, options);
+      case 'sweep':
+        return await sweepCommand(rest, io);
+      case 'stack-height':
+        return await stackHeightCommand(rest, io);
       case 'validate':
         return await validateCommand(rest, {
           stdout: (text) => io.stdout.write(text),

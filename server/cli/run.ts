@@ -22,8 +22,12 @@ import { writeResultFolder, type WrittenResultFolder } from '../writers/writeRes
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
+import { assessmentPlan, type AssessedStandard } from '../../solver/assessment/standards.ts';
+import { levelsFromPercentages } from '../../solver/assessment/footprintAreas.ts';
+import { verdictTable } from '../writers/assessmentFigures.ts';
+import type { ScreeningVerdicts } from '../../solver/assessment/verdicts.ts';
 
-export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--resolution-check]
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--percent-of STANDARD] [--resolution-check]
 
 Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
   summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
@@ -36,6 +40,9 @@ Options:
                      reference); default: the scenario's solver.mode
   -l, --levels LIST  footprint levels in ug/m3, positive and increasing, e.g. 1,2,5,10;
                      default: round numbers (1-2-5 series) across the field's range, at most 7
+  -p, --percent-of STANDARD
+                     read --levels as percentages of this assessed standard's limit (its name as
+                     in summary.json's verdicts); without --levels: 1,10,50,100
   -r, --resolution-check
                      steady grid runs: solve again at half the cell size and report how much
                      each figure changes (made without asking when the finer grid is small)
@@ -43,6 +50,12 @@ Options:
 
 Steady grid runs also report how far their figures are from the Gaussian mode's, receptor by
 receptor and at the peak, with a note when one is more than 1.25 times the other.
+
+With an assessment in the scenario, summary.json holds the screening verdicts (PC, PEC, % of each
+standard, the two-stage screen as common practice in permit guidance, never a legal decision) and
+each standard's statistic is mapped on the ground (standard-*.geojson). summary.json's footprint
+lists, for every level, the area inside it, the farthest distance from each source and the
+receptors inside it.
 
 Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 Set PLUMEPLAN_DEBUG=1 to see the stack of an internal failure.
@@ -55,6 +68,8 @@ interface RunArguments {
   mode?: SolverMode;
   levels_ug_m3?: number[];
   resolutionCheck?: boolean;
+  /** the standard whose limit --levels are percentages of */
+  percentOf?: string;
 }
 
 export interface RunCommandOptions {
@@ -88,56 +103,26 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
   const progress = createProgressReporter(io.stderr, io.now);
   try {
     // A folder argument that names a file is caught now, not after a long run.
-    const existing = await stat(args.outDirectory).catch(() => null);
-    if (existing !== null && !existing.isDirectory()) {
-      io.stderr.write(`plumeplan run: --out: ${args.outDirectory} exists and is not a folder; give a folder for the results\n`);
-      return 2;
-    }
+    if (!(await checkOutFolder(args.outDirectory, io, 'run'))) return 2;
 
-    const outcome = await loadScenarioFile(args.scenarioPath);
-    if (!outcome.ok) {
-      const count = outcome.issues.length;
-      io.stderr.write(
-        `plumeplan run: ${args.scenarioPath} is not a valid scenario (${count} ${count === 1 ? 'issue' : 'issues'}):\n` +
-          `${indent(formatIssues(outcome.issues))}\n`,
-      );
-      return 2;
-    }
-    const scenario = outcome.scenario;
+    const scenario = await loadScenarioForCommand(args.scenarioPath, io, 'run');
+    if (scenario === null) return 2;
     const mode = args.mode ?? scenario.solver.mode;
-
-    // A single steady grid solve runs in a worker thread (the command stays responsive and Ctrl-C stops
-    // it at once). The many solves of an hour-by-hour series or a wind rose go to a pool of worker
-    // threads, one per core, each (grid mode) warm-starting from its own previous solves. Measured back
-    // to back on the demo year, two cores: Gaussian 75.5 s in process, 55.8 s in the pool.
-    const solve = options.solve ?? (scenario.weather.kind === 'steady' ? workerSteadySolver : undefined);
-    const pooled = options.solve === undefined && usesSeriesPool(scenario);
-    const pool = pooled ? createSeriesSolverPool() : null;
-    const interrupt = new AbortController();
-    const onInterrupt = (): void => interrupt.abort();
-    if (pool !== null) process.once('SIGINT', onInterrupt);
-    let result;
-    try {
-      result = await runScenario(scenario, {
-        mode,
-        solve,
-        seriesSolvers: pool?.solvers,
-        stepThreads: defaultSeriesThreads(),
-        resolutionCheck: args.resolutionCheck === true ? 'always' : 'auto',
-        control: { onProgress: (fraction, message) => progress.update(fraction, message), signal: pool !== null ? interrupt.signal : undefined },
-      });
-    } finally {
-      process.off('SIGINT', onInterrupt);
-      await pool?.close();
+    const levels = resolveLevels(scenario, args);
+    if (typeof levels === 'string') {
+      io.stderr.write(`plumeplan run: ${levels}\n`);
+      return 2;
     }
+
+    const result = await executeScenario(scenario, mode, (fraction, message) => progress.update(fraction, message), options.solve, args.resolutionCheck === true ? 'always' : 'auto');
     progress.update(1, 'writing the result folder');
-    const written = await writeResultFolder(args.outDirectory, scenario, result, { levels_ug_m3: args.levels_ug_m3 });
+    const written = await writeResultFolder(args.outDirectory, scenario, result, levels);
     progress.finish();
     io.stdout.write(describeRun(scenario, result, written));
     return 0;
   } catch (error) {
     progress.finish();
-    return reportFailure(error, io);
+    return reportFailure(error, io, 'run');
   }
 }
 
@@ -147,6 +132,7 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     mode: { type: 'string', short: 'm' },
     levels: { type: 'string', short: 'l' },
     'resolution-check': { type: 'boolean', short: 'r' },
+    'percent-of': { type: 'string', short: 'p' },
     help: { type: 'boolean', short: 'h' },
   });
   if (options.help === true) return 'help';
@@ -163,13 +149,118 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
     resolutionCheck: options['resolution-check'] === true,
+    percentOf: typeof options['percent-of'] === 'string' ? options['percent-of'] : undefined,
   };
+}
+
+/**
+ * Load a scenario file for a command, printing every issue (naming the file and the field) when it is
+ * not valid.
+ *
+ * @returns the scenario, or null after printing the issues (the command exits 2)
+ */
+export async function loadScenarioForCommand(scenarioPath: string, io: CommandIO, command: string): Promise<Scenario | null> {
+  const outcome = await loadScenarioFile(scenarioPath);
+  if (outcome.ok) return outcome.scenario;
+  const count = outcome.issues.length;
+  io.stderr.write(
+    `plumeplan ${command}: ${scenarioPath} is not a valid scenario (${count} ${count === 1 ? 'issue' : 'issues'}):\n` +
+      `${indent(formatIssues(outcome.issues))}\n`,
+  );
+  return null;
+}
+
+/**
+ * Refuse an output path that names a file, before any long run.
+ *
+ * @returns true when the path is free or a folder; false after printing the message (the command exits 2)
+ */
+export async function checkOutFolder(outDirectory: string, io: CommandIO, command: string): Promise<boolean> {
+  const existing = await stat(outDirectory).catch(() => null);
+  if (existing !== null && !existing.isDirectory()) {
+    io.stderr.write(`plumeplan ${command}: --out: ${outDirectory} exists and is not a folder; give a folder for the results\n`);
+    return false;
+  }
+  return true;
+}
+
+/** Default percentages of a standard's limit for --percent-of without --levels [%]. */
+const DEFAULT_PERCENT_LEVELS = [1, 10, 50, 100];
+
+/**
+ * The footprint levels: as given in ug/m3, or as percentages of an assessed standard's limit.
+ *
+ * @returns the levels and how they were chosen, or a message naming --percent-of and the allowed names
+ */
+export function resolveLevels(
+  scenario: Scenario,
+  args: { levels_ug_m3?: number[]; percentOf?: string },
+): { levels_ug_m3?: number[]; levelsBasis?: string } | string {
+  if (args.percentOf === undefined) return { levels_ug_m3: args.levels_ug_m3 };
+  let standards: AssessedStandard[] = [];
+  try {
+    standards = scenario.assessment === undefined ? [] : assessmentPlan(scenario.assessment, scenario.pollutant.name).standards;
+  } catch (error) {
+    if (!(error instanceof RangeError)) throw error;
+    return `invalid scenario: ${error.message}`;
+  }
+  const standard = standards.find((candidate) => candidate.name === args.percentOf);
+  if (standard === undefined) {
+    const names = standards.map((candidate) => JSON.stringify(candidate.name)).join(', ');
+    return `--percent-of: ${JSON.stringify(args.percentOf)} is not an assessed standard of this scenario; ` +
+      (names === '' ? 'the scenario has no assessment standards' : `use one of ${names}`);
+  }
+  const percents = args.levels_ug_m3 ?? DEFAULT_PERCENT_LEVELS;
+  return {
+    levels_ug_m3: levelsFromPercentages(percents, standard.limit_ug_m3),
+    levelsBasis: `${percents.join(', ')} % of ${standard.name}, ${standard.limit_ug_m3} ug/m3`,
+  };
+}
+
+/**
+ * Run a loaded scenario the way the command line does: a single steady grid solve in a worker thread
+ * (the command stays responsive and Ctrl-C stops it at once); the many solves of an hour-by-hour series,
+ * a wind rose or the screening weather set in a pool of worker threads, one per core, each (grid mode)
+ * warm-starting from its own previous solves (measured back to back on the demo year, two cores:
+ * Gaussian 75.5 s in process, 55.8 s in the pool). Ctrl-C aborts with an AbortError.
+ *
+ * @param scenario a parsed scenario
+ * @param mode the solver mode
+ * @param onProgress progress callback
+ * @param solve a steady solver to use instead (tests); no pool then
+ */
+export async function executeScenario(
+  scenario: Scenario,
+  mode: SolverMode,
+  onProgress: (fraction: number, message: string) => void,
+  solve?: SteadySolver,
+  resolutionCheck: 'always' | 'auto' = 'auto',
+): Promise<ScenarioRunResult> {
+  const steadySolve = solve ?? (scenario.weather.kind === 'steady' ? workerSteadySolver : undefined);
+  const pooled = solve === undefined && usesSeriesPool(scenario);
+  const pool = pooled ? createSeriesSolverPool() : null;
+  const interrupt = new AbortController();
+  const onInterrupt = (): void => interrupt.abort();
+  if (pool !== null) process.once('SIGINT', onInterrupt);
+  try {
+    return await runScenario(scenario, {
+      mode,
+      solve: steadySolve,
+      seriesSolvers: pool?.solvers,
+      stepThreads: defaultSeriesThreads(),
+      resolutionCheck,
+      control: { onProgress, signal: pool !== null ? interrupt.signal : undefined },
+    });
+  } finally {
+    process.off('SIGINT', onInterrupt);
+    await pool?.close();
+  }
 }
 
 /** Whether a run makes many steady solves (a pool of worker threads takes them). */
 function usesSeriesPool(scenario: Scenario): boolean {
   const weather = scenario.weather;
-  return weather.kind === 'windRose' || (weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours');
+  return weather.kind === 'windRose' || weather.kind === 'screeningSet' || (weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'independentHours');
 }
 
 /** Exit code of a run stopped by an interrupt (128 + SIGINT, the shell convention). */
@@ -193,23 +284,27 @@ export const workerSteadySolver: SteadySolver = async (input, mode, control = {}
   }
 };
 
-/** Exit code and message for an error thrown while running. */
-function reportFailure(error: unknown, io: CommandIO): number {
+/**
+ * Exit code and message for an error thrown while running a command.
+ *
+ * @param command the command's name for the message, e.g. "run" or "compare"
+ */
+export function reportFailure(error: unknown, io: CommandIO, command: string): number {
   if (error instanceof Error && error.name === 'AbortError') {
-    io.stderr.write('plumeplan run: interrupted; no results written\n');
+    io.stderr.write(`plumeplan ${command}: interrupted; no results written\n`);
     return INTERRUPTED_EXIT_CODE;
   }
   if (error instanceof ScenarioInputError) {
-    io.stderr.write(`plumeplan run: invalid scenario: ${error.message}\n`);
+    io.stderr.write(`plumeplan ${command}: invalid scenario: ${error.message}\n`);
     return 2;
   }
   if (error instanceof UnavailableError) {
     const suggestion = error.alternativeMode === null ? '' : `; use --mode ${error.alternativeMode} meanwhile`;
-    io.stderr.write(`plumeplan run: ${error.message}${suggestion}\n`);
+    io.stderr.write(`plumeplan ${command}: ${error.message}${suggestion}\n`);
     return 1;
   }
   const message = error instanceof Error ? error.message : String(error);
-  io.stderr.write(`plumeplan run: internal failure: ${message}\n`);
+  io.stderr.write(`plumeplan ${command}: internal failure: ${message}\n`);
   if (io.env.PLUMEPLAN_DEBUG === '1' && error instanceof Error && error.stack !== undefined) {
     io.stderr.write(`${error.stack}\n`);
   } else {
@@ -222,8 +317,8 @@ function reportFailure(error: unknown, io: CommandIO): number {
 export function describeRun(scenario: Scenario, result: ScenarioRunResult, written: WrittenResultFolder): string {
   const { summary, footprint } = written;
   const { peak } = summary;
-  const weather = { steady: 'steady weather', hourly: 'hourly series', windRose: 'wind rose' }[result.weatherKind];
-  const statistic = peak.statistic === 'mean' ? 'mean ' : '';
+  const weather = { steady: 'steady weather', hourly: 'hourly series', windRose: 'wind rose', screeningSet: 'screening weather set' }[result.weatherKind];
+  const statistic = { concentration: '', mean: 'mean ', maximum: 'highest hourly ' }[peak.statistic];
   const lines = [
     `${scenario.name}: ${scenario.pollutant.name}, ${result.mode} mode, ${weather}, ` +
       `grid ${result.grid.nx} x ${result.grid.ny} x ${result.grid.nz} at ${result.grid.spacing_m} m, ` +
@@ -254,6 +349,23 @@ export function describeRun(scenario: Scenario, result: ScenarioRunResult, writt
   else if (footprint.features.length === 0) lines.push(`Footprint: no ground reaches the lowest level, ${levels[0]} ug/m3`);
   else lines.push(`Footprint bands from ${levels.join(', ')} ug/m3 (the top band open-ended)`);
   lines.push(...checkLines(result, summary.notes));
+  const areas = summary.footprint.areas.filter((entry) => entry.area_m2 > 0);
+  if (areas.length > 0) {
+    lines.push(
+      `Ground at or above each level${summary.footprint.levelsBasis ? ` (${summary.footprint.levelsBasis})` : ''}:`,
+      ...areas.map((entry) => {
+        const farthest = entry.farthest
+          .filter((f) => f.distance_m !== null)
+          .map((f) => `${f.distance_m} m from ${f.sourceId}`)
+          .join(', ');
+        const inside = entry.receptorsInside.length > 0 ? `; receptors inside: ${entry.receptorsInside.join(', ')}` : '';
+        return `  ${entry.level_ug_m3} ug/m3: ${entry.area_ha} ha, up to ${farthest}${entry.reachesGridEdge ? ' (reaches the grid edge: at least)' : ''}${inside}`;
+      }),
+    );
+  }
+  const verdicts = summary.verdicts as ScreeningVerdicts | undefined;
+  if (verdicts !== undefined && verdicts.standards.length > 0) lines.push(...verdictTable(verdicts));
+  for (const flag of result.downwash ?? []) if (flag.flagged) lines.push(`Building downwash: ${flag.message}`);
   lines.push(`Caution: ${SCREENING_CAUTION}`);
   return `${lines.join('\n')}\n`;
 }

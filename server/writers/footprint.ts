@@ -20,6 +20,7 @@ import type { Feature, MultiPolygon, Polygon, Position } from 'geojson';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
 import { sitePeak, type SiteColumns } from '../../solver/grid/siteBoundary.ts';
 import type { LocalGrid } from '../../solver/grid/types.ts';
+import type { FootprintStatistic } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import { LON_LAT_DECIMALS, roundDecimals, roundSignificant } from './rounding.ts';
 
@@ -44,8 +45,13 @@ export interface FootprintBandProperties {
 export interface FootprintCollectionProperties {
   caution: string;
   scenario: string;
-  /** what the field is: "concentration" (steady weather) or "mean" (hourly series, wind rose) */
-  statistic: 'concentration' | 'mean';
+  /**
+   * what the field is: "concentration" (steady weather), "mean" (hourly series, wind rose), "maximum"
+   * (the screening weather set) or "standard" (a standard's statistic: see `standard`)
+   */
+  statistic: FootprintStatistic | 'standard';
+  /** the standard whose statistic the field is, when statistic is "standard" */
+  standard?: FootprintStandard;
   units: 'ug/m3';
   /** height of the ground-level field above the ground [m] */
   height_m: number;
@@ -68,13 +74,25 @@ export interface FootprintCollection {
   features: Feature<Polygon | MultiPolygon, FootprintBandProperties>[];
 }
 
+/** The standard a map of a standard's statistic shows. */
+export interface FootprintStandard {
+  name: string;
+  limit_ug_m3: number;
+  /** how the figure was formed (StandardFieldBasis): "statistic", "upperBound" or "oneWeatherHour" */
+  basis: string;
+  /** the levels as percentages of the limit [%] */
+  levelsPercentOfLimit: number[];
+}
+
 export interface FootprintOptions {
+  /** the standard, for a map of a standard's statistic */
+  standard?: FootprintStandard;
   /** levels to draw, positive and strictly increasing [ug/m3]; default: defaultFootprintLevels(field) */
   levels_ug_m3?: number[];
   /** scenario name written into the collection's properties; default "" */
   scenarioName?: string;
   /** statistic the field holds; default "concentration" */
-  statistic?: 'concentration' | 'mean';
+  statistic?: FootprintStatistic | 'standard';
   /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_m (1.5) */
   height_m?: number;
   /** the site boundary's columns: the peak is reported off the site; default none */
@@ -202,6 +220,7 @@ export function footprintBands(
       caution: SCREENING_CAUTION,
       scenario: options.scenarioName ?? '',
       statistic: options.statistic ?? 'concentration',
+      ...(options.standard !== undefined ? { standard: options.standard } : {}),
       units: 'ug/m3',
       height_m: options.height_m ?? GROUND_LEVEL_HEIGHT_m,
       levels_ug_m3: [...levels],

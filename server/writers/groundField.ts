@@ -13,7 +13,7 @@
  * carries the screening caution like every other output.
  */
 import type { Scenario } from '../../scenarios/format/types.ts';
-import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
+import type { FootprintStatistic, ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 
 export const GROUND_FIELD_FORMAT = 'plumeplan.groundfield/1';
@@ -34,8 +34,8 @@ export interface GroundFieldHeader {
   /** proj4 definition of the local transverse Mercator: local metres <-> WGS 84 */
   projection: string;
   units: 'ug/m3';
-  /** "concentration" (steady weather) or "mean" (an hourly series or a wind rose) */
-  statistic: 'concentration' | 'mean';
+  /** "concentration" (steady weather), "mean" (an hourly series or a wind rose) or "maximum" (the screening weather set's highest hourly value) */
+  statistic: FootprintStatistic;
   /** height of the field above ground [m] */
   height_m: number;
   /** smallest and largest value [ug/m3] */

@@ -8,11 +8,13 @@
  * are written as the driver gives them.
  */
 import { RESULT_FORMAT, type Scenario, type SolverMode } from '../../scenarios/format/types.ts';
-import type { MassBudget, ScenarioRunResult } from '../../solver/drivers/types.ts';
+import type { FootprintStatistic, MassBudget, ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
 import { edgeCutNotes, footprintEdgeCuts } from '../../solver/diagnostics/edgeCut.ts';
 import { sitePeak, type GroundPeak } from '../../solver/grid/siteBoundary.ts';
 import { SCREENING_CAUTION } from './caution.ts';
+import { footprintLevelAreas, roundVerdicts } from './assessmentFigures.ts';
+import type { LevelArea } from '../../solver/assessment/footprintAreas.ts';
 import {
   CONCENTRATION_SIGNIFICANT_FIGURES,
   LON_LAT_DECIMALS,
@@ -46,7 +48,7 @@ export interface SummaryPeak {
   x_m: number;
   y_m: number;
   /** what the field is: a steady concentration or a period mean */
-  statistic: 'concentration' | 'mean';
+  statistic: FootprintStatistic;
   /** where the peak was looked for: off the site (a boundary was given) or anywhere (it may be on the site) */
   where: string;
   /** the maximum on the site, labelled, when the scenario gives site.boundary */
@@ -87,9 +89,13 @@ export interface ResultSummary {
   receptors: SummaryReceptor[];
   footprint: {
     file: string;
-    statistic: 'concentration' | 'mean';
+    statistic: FootprintStatistic;
     height_m: number;
     levels_ug_m3: number[];
+    /** how the levels were chosen, when as percentages of a standard */
+    levelsBasis?: string;
+    /** per level: area [m2, ha], farthest distance from each source [m], receptors inside (2 significant figures) */
+    areas: LevelArea[];
     /** whether the lowest band reaches the domain's edge: a sentence when it does not, else where it is cut */
     edge?: string | { side: string; length_m: number; from_m: number; to_m: number; largest_ug_m3: number }[];
   };
@@ -101,6 +107,8 @@ export interface ResultSummary {
 export interface SummaryOptions {
   /** the footprint's levels, ascending [ug/m3] */
   levels_ug_m3?: number[];
+  /** how the levels were chosen, e.g. "1, 10, 50, 100 % of NO2 annual mean (EU 2008/50/EC), 40 ug/m3" */
+  levelsBasis?: string;
   /** height of the ground-level field [m]; default GROUND_LEVEL_HEIGHT_m */
   groundLevelHeight_m?: number;
 }
@@ -165,6 +173,8 @@ export function buildSummary(
       statistic: result.footprintStatistic,
       height_m: options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m,
       levels_ug_m3: [...(options.levels_ug_m3 ?? [])],
+      ...(options.levelsBasis !== undefined ? { levelsBasis: options.levelsBasis } : {}),
+      areas: footprintLevelAreas(scenario, result, options.levels_ug_m3 ?? []),
     },
     caution: SCREENING_CAUTION,
     notes: [...result.notes],
@@ -179,6 +189,8 @@ export function buildSummary(
         : cuts.map((cut) => ({ side: cut.side, length_m: roundDecimals(cut.length_m, 1), from_m: roundDecimals(cut.from_m, 1), to_m: roundDecimals(cut.to_m, 1), largest_ug_m3: roundFigure('edge_ug_m3', cut.largest) }));
     summary.notes.push(...edgeCutNotes(cuts, lowest));
   }
+  if (result.verdicts !== undefined) summary.verdicts = roundVerdicts(result.verdicts);
+  if (result.downwash !== undefined) summary.downwash = result.downwash;
   for (const [key, value] of Object.entries(result.extraSummary)) {
     if (key in summary) {
       throw new Error(`extraSummary.${key}: would overwrite summary.json's own "${key}"; give it another name`);

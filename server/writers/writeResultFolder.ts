@@ -17,6 +17,7 @@ import { buildReceptorsCsv } from './receptorsCsv.ts';
 import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
 import { buildSummary, type ResultSummary } from './summary.ts';
 import { windRoseSvg } from './windRoseSvg.ts';
+import { levelsFromPercentages } from '../../solver/assessment/footprintAreas.ts';
 
 export const SUMMARY_FILE = 'summary.json';
 export const RECEPTORS_FILE = 'receptors.csv';
@@ -30,6 +31,8 @@ const RESULT_FILES_FORMAT = 'plumeplan.result-files/1';
 export interface ResultFolderOptions {
   /** footprint levels, positive and increasing [ug/m3]; default: round levels across the field's range */
   levels_ug_m3?: number[];
+  /** how the levels were chosen, when as percentages of a standard (written into summary.json) */
+  levelsBasis?: string;
   /** height of the ground-level field [m]; default 1.5 */
   groundLevelHeight_m?: number;
 }
@@ -139,23 +142,60 @@ export function buildResultFiles(scenario: Scenario, result: ScenarioRunResult, 
   });
   const summary = buildSummary(scenario, result, {
     levels_ug_m3: footprint.properties.levels_ug_m3,
+    levelsBasis: options.levelsBasis,
     groundLevelHeight_m,
   });
+  const standardMaps = standardFootprints(scenario, result, groundLevelHeight_m);
+  if (standardMaps.length > 0) {
+    summary.standardMaps = standardMaps.map(({ name, file, levels }) => ({ standard: name, file, levels_ug_m3: levels }));
+  }
   const receptorsCsv = buildReceptorsCsv(scenario, result);
   const contents: [string, string][] = [
     [SUMMARY_FILE, `${JSON.stringify(summary, null, 2)}\n`],
     [RECEPTORS_FILE, receptorsCsv],
     [FOOTPRINT_FILE, formatFootprint(footprint)],
     ...(result.windRose ? [[WIND_ROSE_FILE, windRoseSvg(result.windRose.table, { caption: result.windRose.caption })] as [string, string]] : []),
+    ...standardMaps.map(({ file, collection }) => [file, formatFootprint(collection)] as [string, string]),
   ];
   return { contents, summary, footprint };
+}
+
+/** Levels of a standard's map as percentages of its limit [%]: 1 % and 10 % (the screen's thresholds), half, and the limit. */
+export const STANDARD_MAP_PERCENTAGES = [1, 10, 50, 100] as const;
+
+/**
+ * A map of each standard's statistic on the ground (the annual mean, the percentile the allowed
+ * exceedances imply, or the screening set's upper bound), as bands at 1, 10, 50 and 100 % of its limit.
+ * Steady weather gets none: its hourly PC is the footprint itself.
+ */
+function standardFootprints(scenario: Scenario, result: ScenarioRunResult, height_m: number) {
+  const verdictOf = new Map((result.verdicts?.standards ?? []).map((v) => [v.name, v]));
+  const used = new Set<string>();
+  return (result.standardFields ?? [])
+    // one steady state's hourly PC is no standard's statistic (verdicts call it indicative): no map for it
+    .filter((field) => field.ground_ug_m3 !== null && field.basis !== 'oneWeatherHour' && verdictOf.has(field.name))
+    .map((field) => {
+      const verdict = verdictOf.get(field.name)!;
+      const levels = levelsFromPercentages(STANDARD_MAP_PERCENTAGES, verdict.limit_ug_m3);
+      let slug = `standard-${field.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '')}`;
+      for (let n = 2; used.has(slug); n++) slug = `${slug}-${n}`;
+      used.add(slug);
+      const collection = footprintBands(field.ground_ug_m3!, result.grid, {
+        levels_ug_m3: levels,
+        scenarioName: scenario.name,
+        statistic: 'standard',
+        standard: { name: field.name, limit_ug_m3: verdict.limit_ug_m3, basis: field.basis, levelsPercentOfLimit: [...STANDARD_MAP_PERCENTAGES] },
+        height_m,
+      });
+      return { name: field.name, file: `${slug}.geojson`, levels, collection };
+    });
 }
 
 /**
  * footprint.geojson's text: the collection's properties indented for reading, then one feature per line
  * (a band's coordinates run to thousands of numbers, which would be unreadable one per line).
  */
-export function formatFootprint(collection: FootprintCollection): string {
+export function formatFootprint(collection: Pick<FootprintCollection, 'properties'> & { features: readonly unknown[] } | { properties: object; features: readonly unknown[] }): string {
   const properties = JSON.stringify(collection.properties, null, 2).replaceAll('\n', '\n  ');
   const features = collection.features.map((feature) => `    ${JSON.stringify(feature)}`).join(',\n');
   return (

@@ -183,6 +183,12 @@ export async function runHourlySeries(
     footprint_ug_m3: statistics.groundMean,
     footprintStatistic: 'mean',
     receptorColumns: seriesReceptorColumns(statistics.receptorMean, statistics.receptorMax, statistics.standards),
+    standardFields: statistics.standards.map((s) => ({
+      name: s.standard.name,
+      basis: 'statistic' as const,
+      receptors_ug_m3: s.receptorValues,
+      ground_ug_m3: s.groundValues,
+    })),
     notes,
     extraSummary,
     windRose: {

@@ -19,6 +19,9 @@ import { solveSteady } from './solveSteady.ts';
 import { AUTOMATIC_RESOLUTION_CHECK_CELLS, compareModes, compareResolutions } from './runChecks.ts';
 import { columnsPerSide } from '../grid/localGrid.ts';
 import type { MassBudget, RunControl, ScenarioRunResult, SteadyFieldResult, SteadyRunInput } from './types.ts';
+import { assessmentPlan, type AssessmentPlan } from '../assessment/standards.ts';
+import { assessRun } from '../assessment/assessRun.ts';
+import { runScreeningSet } from '../assessment/screeningWeather.ts';
 
 /**
  * Input the scenario file passed its schema with but that cannot be run as given (a source outside the
@@ -66,14 +69,15 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
   const geometry = asInputError(() => prepareScenarioGeometry(scenario));
   // The same warnings `plumeplan validate` prints (server/scenarioFiles/semantics.ts calls this too).
   const warnings = asInputError(() => inputWarnings(scenario, geometry));
+  const plan = scenario.assessment === undefined ? undefined : asInputError(() => assessmentPlan(scenario.assessment!, scenario.pollutant.name));
   // RangeErrors name a field of the scenario (project convention, inside the solver too): input errors.
   try {
-    const result = await dispatchByWeather(scenario, geometry, mode, control, options);
+    const result = await dispatchByWeather(scenario, geometry, mode, control, options, plan);
+    const assessed = assessRun(scenario, plan, { ...result, site: geometry.site }, geometry.receptors);
     return {
-      ...result,
-      site: geometry.site,
-      notes: [...result.notes, ...formatWarnings(warnings).map((line) => `input warning: ${line}`)],
-      extraSummary: { ...result.extraSummary, inputWarnings: warnings },
+      ...assessed,
+      notes: [...assessed.notes, ...formatWarnings(warnings).map((line) => `input warning: ${line}`)],
+      extraSummary: { ...assessed.extraSummary, inputWarnings: warnings },
     };
   } catch (error) {
     if (error instanceof RangeError) throw new ScenarioInputError(error.message, { cause: error });
@@ -87,6 +91,7 @@ async function dispatchByWeather(
   mode: SolverMode,
   control: RunControl,
   options: RunScenarioOptions,
+  plan: AssessmentPlan | undefined,
 ): Promise<ScenarioRunResult> {
   const { solve, seriesSolvers } = options;
   const stepThreads = options.stepThreads ?? 1;
@@ -125,7 +130,7 @@ async function dispatchByWeather(
         method: scenario.solver.hourlyMethod,
         continuous: continuousGridSeriesWithThreads(stepThreads),
         site: scenario.site,
-        assessment: scenario.assessment,
+        assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
@@ -135,7 +140,16 @@ async function dispatchByWeather(
       return runWindRose(seriesBaseInput(scenario, geometry), weather, {
         mode,
         site: scenario.site,
-        assessment: scenario.assessment,
+        assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },
+        control,
+        solve: seriesSolvers ?? solve,
+        extraSummary: { domain: domainSummary },
+      });
+    case 'screeningSet':
+      return runScreeningSet(seriesBaseInput(scenario, geometry), weather, {
+        mode,
+        site: scenario.site,
+        assessment: plan && { background_ug_m3: plan.background_ug_m3, standards: plan.standards },
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },

@@ -8,6 +8,7 @@ import { averagingPlan, standardColumnKey, standardExceedanceKey, standardFigure
 import { sitePeak, type SitePeak } from '../grid/siteBoundary.ts';
 import type { ReceptorColumn } from './types.ts';
 import type { SeriesBaseInput, SeriesFields } from './seriesSolves.ts';
+import { isComputable, pcFactorOf } from '../assessment/standards.ts';
 
 /** Access to hour h's value at receptor r and column c, whichever way the fields are stored. */
 export interface HourlyValues {
@@ -55,7 +56,10 @@ export interface SeriesStatistics {
 }
 
 /**
- * Mean, maximum and each standard's statistic at every receptor and ground column.
+ * Mean, maximum and each standard's statistic at every receptor and ground column. A standard's figures
+ * are of the assessed pollutant: the hourly PC times the standard's PC factor (the NOx to NO2 ratio of
+ * ../assessment/standards.ts, 1 for a plain standard). Standards whose statistic plumeplan cannot form
+ * (see isComputable) are left out here and reported by the assessment.
  */
 export function seriesStatistics(
   values: HourlyValues,
@@ -66,13 +70,20 @@ export function seriesStatistics(
   assessment: Assessment | undefined,
 ): SeriesStatistics {
   const hours = values.hours;
-  const standards = (assessment?.standards ?? []).map((standard) => ({
+  const standards = (assessment?.standards ?? []).filter(isComputable).map((standard) => ({
     standard,
     plan: averagingPlan(hourStarts_ms, offsetMinutes, standard.averaging_h, standard.runningMean === true),
+    factor: pcFactorOf(standard),
   }));
   const background = assessment?.background_ug_m3 ?? 0;
   const series = new Float64Array(hours);
+  const scaled = new Float64Array(hours);
   const work = new Float64Array(hours);
+  const assessedSeries = (factor: number): Float64Array => {
+    if (factor === 1) return series;
+    for (let h = 0; h < hours; h++) scaled[h] = factor * series[h];
+    return scaled;
+  };
   const summarise = (fill: (series: Float64Array) => void) => {
     fill(series);
     let sum = 0;
@@ -81,7 +92,7 @@ export function seriesStatistics(
       sum += series[h];
       if (series[h] > largest) largest = series[h];
     }
-    const figures = standards.map(({ standard, plan }) => standardFigures(series, plan, standard, background, work));
+    const figures = standards.map(({ standard, plan, factor }) => standardFigures(assessedSeries(factor), plan, standard, background, work));
     return { mean: sum / hours, max: largest, figures };
   };
   const receptorMean = new Float64Array(receptorCount);

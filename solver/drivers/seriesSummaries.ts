@@ -3,7 +3,7 @@
  * sources' mean effective heights, the frequency-weighted mass budget and the solves' notes.
  */
 import type { Assessment, AirQualityStandard, StabilityClass } from '../../scenarios/format/types.ts';
-import { HOURS_PER_YEAR, standardColumnKey, standardExceedanceKey, type SeriesCoverage } from '../diagnostics/statistics.ts';
+import { standardColumnKey, standardExceedanceKey, type SeriesCoverage } from '../diagnostics/statistics.ts';
 import { CALM_THRESHOLD_m_s, type StabilitySource } from '../meteorology/resolveWeather.ts';
 import type { WindRoseTable } from '../meteorology/windRoseTable.ts';
 import type { MassBudget, ResolvedWeather, SourceReport } from './types.ts';
@@ -32,10 +32,9 @@ export function standardsSummary(
     definitions:
       'values are process contributions (PC) [ug/m3]; PEC = PC + background; exceedances count periods whose PEC is above ' +
       'the limit; short-term percentiles are 100 (1 - allowed / periods a year) by the nearest-rank method; ' +
-      'screening of the PC: below 10 % of a short-term or 1 % of a long-term limit is commonly treated as insignificant ' +
-      '(gov.uk permit guidance, thresholds from memory)',
+      'values are of the assessed pollutant (NO2 from NOx by the stated ratio where the library standard needs it); ' +
+      'the screen of each figure is in "verdicts"',
     standards: standards.map((s) => {
-      const longTerm = s.standard.averaging_h >= HOURS_PER_YEAR;
       return {
         name: s.standard.name,
         limit_ug_m3: s.standard.limit_ug_m3,
@@ -55,10 +54,7 @@ export function standardsSummary(
             id: receptor.id,
             pc_ug_m3: pc,
             pec_ug_m3: pec,
-            pcPercentOfLimit: (100 * pc) / s.standard.limit_ug_m3,
             exceedances: s.receptorExceedances[r],
-            meetsStandard: longTerm ? pec <= s.standard.limit_ug_m3 : s.receptorExceedances[r] <= s.standard.allowedExceedances,
-            pcInsignificant: pc < (longTerm ? 0.01 : 0.1) * s.standard.limit_ug_m3,
           };
         }),
         ...(s.groundValues ? { groundPeak: groundPeak(base, s.groundValues) } : {}),

@@ -14,6 +14,8 @@ import type {
 import type { LocalGrid } from '../grid/types.ts';
 import type { SiteColumns } from '../grid/siteBoundary.ts';
 import type { WindRoseTable } from '../meteorology/windRoseTable.ts';
+import type { ScreeningVerdicts } from '../assessment/verdicts.ts';
+import type { DownwashFlag } from '../assessment/downwash.ts';
 
 /** Weather of one steady period with every field resolved (stability derived, calms applied). */
 export interface ResolvedWeather {
@@ -150,10 +152,13 @@ export interface ReceptorColumn {
   values: Float64Array;
 }
 
+/** What a ground-level field holds: one steady state, a mean over weather, or the highest hourly value. */
+export type FootprintStatistic = 'concentration' | 'mean' | 'maximum';
+
 /** What a whole scenario run (steady, hourly series or wind rose) hands to the result writers. */
 export interface ScenarioRunResult {
   mode: SolverMode;
-  weatherKind: 'steady' | 'hourly' | 'windRose';
+  weatherKind: 'steady' | 'hourly' | 'windRose' | 'screeningSet';
   grid: LocalGrid;
   sources: SourceReport[];
   massBudget_g: MassBudget | null;
@@ -162,8 +167,8 @@ export interface ScenarioRunResult {
   wallSeconds: number;
   /** the ground-level field the footprint is drawn from, index i + nx * j [ug/m3] */
   footprint_ug_m3: Float64Array;
-  /** what footprint_ug_m3 is: "concentration" (steady) or "mean" (series, rose) */
-  footprintStatistic: 'concentration' | 'mean';
+  /** what footprint_ug_m3 is: "concentration" (steady), "mean" (series, rose) or "maximum" (screening set) */
+  footprintStatistic: FootprintStatistic;
   receptorColumns: ReceptorColumn[];
   /** plain-language notes about what was and was not applied */
   notes: string[];
@@ -176,4 +181,33 @@ export interface ScenarioRunResult {
   site?: SiteColumns | null;
   /** the weather's wind rose (series and rose runs) and a caption for it; the writers draw the picture */
   windRose?: { table: WindRoseTable; caption: string };
+  /**
+   * each assessed standard's statistic of the assessed pollutant at the receptors and on the ground,
+   * where the weather allows it (../assessment/verdicts.ts turns these into verdicts)
+   */
+  standardFields?: StandardField[];
+  /** the screening verdicts, when the scenario has an assessment */
+  verdicts?: ScreeningVerdicts;
+  /** stacks flagged as standing in a building's wake */
+  downwash?: DownwashFlag[];
+}
+
+/**
+ * How a standard's figure was formed:
+ * - "statistic": the standard's own statistic of an hourly series (or a wind rose's distribution);
+ * - "upperBound": the highest hourly PC over the screening weather set, which no percentile of hourly or
+ *   daily means and no period mean can exceed (constant emissions);
+ * - "oneWeatherHour": the hourly PC of one steady weather state, for hourly standards only.
+ */
+export type StandardFieldBasis = 'statistic' | 'upperBound' | 'oneWeatherHour';
+
+/** One standard's statistic of the assessed pollutant [ug/m3]. */
+export interface StandardField {
+  /** the standard's name (AssessedStandard.name) */
+  name: string;
+  basis: StandardFieldBasis;
+  /** in the order of the scenario's receptors */
+  receptors_ug_m3: Float64Array;
+  /** on the ground-level grid, index i + nx * j; null where the weather gives no ground map */
+  ground_ug_m3: Float64Array | null;
 }

@@ -27,6 +27,7 @@ import { reuseRules, solveWithReuse, type SeriesBaseInput, type SeriesRunOptions
 import { groundPeak, seriesReceptorColumns } from './seriesStatistics.ts';
 import { distinctNotes, meanSourceReports, seriesMassBudget, standardsSummary } from './seriesSummaries.ts';
 import { solveSteady } from './solveSteady.ts';
+import { isComputable, pcFactorOf } from '../assessment/standards.ts';
 import type { ResolvedWeather, ScenarioRunResult } from './types.ts';
 
 /**
@@ -125,8 +126,10 @@ export async function runWindRose(
   const background = options.assessment?.background_ug_m3 ?? 0;
   const notes: string[] = [];
   const standards = [];
-  for (const standard of options.assessment?.standards ?? []) {
+  for (const standard of (options.assessment?.standards ?? []).filter(isComputable)) {
     const longTerm = standard.averaging_h >= HOURS_PER_YEAR;
+    // figures of the assessed pollutant (NO2 from NOx: ../assessment/standards.ts)
+    const factor = pcFactorOf(standard);
     if (!longTerm && standard.averaging_h !== 1) {
       notes.push(
         `standard "${standard.name}" (${standard.averaging_h}-hour means) is not computed from a wind rose: it needs the time order of an hourly series`,
@@ -137,16 +140,18 @@ export async function runWindRose(
     const receptorExceedances = new Float64Array(receptorCount);
     for (let r = 0; r < receptorCount; r++) {
       if (longTerm) {
-        receptorValues[r] = receptorMean[r];
-        receptorExceedances[r] = receptorMean[r] + background > standard.limit_ug_m3 ? 1 : 0;
+        receptorValues[r] = factor * receptorMean[r];
+        receptorExceedances[r] = receptorValues[r] + background > standard.limit_ug_m3 ? 1 : 0;
       } else {
-        receptorValues[r] = weightedPercentile(receptorByCell[r], frequencies, percentileForStandard(standard));
+        // a positive factor moves every cell alike, so the weighted percentile scales with it
+        receptorValues[r] = factor * weightedPercentile(receptorByCell[r], frequencies, percentileForStandard(standard));
         let above = 0;
-        for (let i = 0; i < cells; i++) if (receptorByCell[r][i] + background > standard.limit_ug_m3) above += frequencies[i];
+        for (let i = 0; i < cells; i++) if (factor * receptorByCell[r][i] + background > standard.limit_ug_m3) above += frequencies[i];
         receptorExceedances[r] = above * HOURS_PER_YEAR;
       }
     }
-    standards.push({ standard, receptorValues, receptorExceedances, longTerm });
+    const groundValues = longTerm ? groundMean.map((value) => factor * value) : null;
+    standards.push({ standard, receptorValues, receptorExceedances, longTerm, groundValues });
   }
 
   const solveSeconds = fields.solves.reduce((sum, s) => sum + s.wallSeconds, 0);
@@ -197,7 +202,7 @@ export async function runWindRose(
         percentile: s.longTerm ? undefined : percentileForStandard(s.standard),
         receptorValues: s.receptorValues,
         receptorExceedances: s.receptorExceedances,
-        groundValues: s.longTerm ? groundMean : null,
+        groundValues: s.groundValues,
         exceedanceBasis: s.longTerm ? 'the mean (1 if above the limit)' : 'expected hours a year, 8760 x the frequency of cells above the limit',
       })),
     );
@@ -213,6 +218,12 @@ export async function runWindRose(
     footprint_ug_m3: groundMean,
     footprintStatistic: 'mean',
     receptorColumns: seriesReceptorColumns(receptorMean, receptorMax, standards),
+    standardFields: standards.map((s) => ({
+      name: s.standard.name,
+      basis: 'statistic' as const,
+      receptors_ug_m3: s.receptorValues,
+      ground_ug_m3: s.groundValues,
+    })),
     notes,
     extraSummary,
     windRose: { table: rose, caption: options.windRoseCaption ?? 'Wind-rose weather of the run' },

@@ -264,3 +264,4 @@ await main();
 await import('./weather.ts'); // weather benchmarks: the demo met year hour by hour, a continuous week (tests/bench/weather.ts)
 await import('./server.ts'); // server benchmarks: API reads while two runs compute, the event loop's longest stall (tests/bench/server.ts)
 await import('./mapPage.ts'); // map page benchmarks: run to overlay drawn, preview while dragging a stack (tests/bench/mapPage.ts)
+await import('./assessment.ts'); // the screening weather set on the demo, a 10-member stack-height sweep (tests/bench/assessment.ts)

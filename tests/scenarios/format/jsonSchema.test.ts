@@ -24,6 +24,6 @@ describe('scenario.schema.json', () => {
     expect(point.required).not.toContain('name');
     expect(schema.properties.domain.properties.layers).toMatchObject({ type: 'integer', minimum: 2, maximum: 200 });
     const kinds = schema.properties.weather.oneOf.map((option: any) => option.properties.kind.const);
-    expect(kinds).toEqual(['steady', 'hourly', 'windRose']);
+    expect(kinds).toEqual(['steady', 'hourly', 'windRose', 'screeningSet']);
   });
 });

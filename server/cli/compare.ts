@@ -1,0 +1,203 @@
+/**
+ * `plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]`: run two scenarios and
+ * write how B differs from A: comparison.json, difference.geojson, and each run's own result folder
+ * (DIR/a, DIR/b). Exit codes as `run`.
+ */
+import { mkdir, writeFile } from 'node:fs/promises';
+import path from 'node:path';
+import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
+import { compareRuns, type ComparedRun, type Comparison } from '../../solver/assessment/comparison.ts';
+import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
+import { SCREENING_CAUTION } from '../writers/caution.ts';
+import { comparisonJson, differenceFootprint, type DifferenceCollection } from '../writers/comparison.ts';
+import { defaultFootprintLevels } from '../writers/footprint.ts';
+import { formatFootprint, writeResultFolder } from '../writers/writeResultFolder.ts';
+import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
+import type { CommandIO } from './io.ts';
+import { createProgressReporter } from './progress.ts';
+import { checkOutFolder, executeScenario, loadScenarioForCommand, reportFailure, type RunCommandOptions } from './run.ts';
+
+export const COMPARE_USAGE = `usage: plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
+
+Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
+  comparison.json     peaks, the change at each receptor both share (a_ug_m3, b_ug_m3,
+                      delta_ug_m3, change_pct), the change of each footprint level's area, every
+                      screening verdict that changes, notes (resampling when the grids differ)
+  difference.geojson  bands of B - A on A's grid, increases and decreases apart (WGS 84)
+  a/, b/              each run's own result folder, as "plumeplan run" writes it
+
+Options:
+  -o, --out DIR      folder for the results (required)
+  -m, --mode MODE    grid or gaussian for both runs; default: each scenario's solver.mode
+  -l, --levels LIST  footprint levels in ug/m3 whose areas are compared (and A's and B's footprints);
+                     default: round numbers across the larger run's range
+  -h, --help         show this help
+
+Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
+Results are screening estimates only; see the caution in comparison.json.
+`;
+
+interface CompareArguments {
+  pathA: string;
+  pathB: string;
+  outDirectory: string;
+  mode?: SolverMode;
+  levels_ug_m3?: number[];
+}
+
+function readCompareArguments(argv: string[]): CompareArguments | 'help' {
+  const { options, positionals } = parseCommandLine(argv, {
+    out: { type: 'string', short: 'o' },
+    mode: { type: 'string', short: 'm' },
+    levels: { type: 'string', short: 'l' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (options.help === true) return 'help';
+  if (positionals.length !== 2) {
+    throw new UsageError(`compare takes two scenario files, A and B; got ${positionals.length}${positionals.length > 0 ? `: ${positionals.join(' ')}` : ''}`);
+  }
+  if (typeof options.out !== 'string' || options.out === '') throw new UsageError('--out DIR is required: the folder to write the comparison into');
+  return {
+    pathA: positionals[0],
+    pathB: positionals[1],
+    outDirectory: options.out,
+    mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
+    levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
+  };
+}
+
+/**
+ * Run `plumeplan compare`.
+ *
+ * @returns the exit code
+ */
+export async function compareCommand(argv: string[], io: CommandIO, options: RunCommandOptions = {}): Promise<number> {
+  let args: CompareArguments | 'help';
+  try {
+    args = readCompareArguments(argv);
+  } catch (error) {
+    if (!(error instanceof UsageError)) throw error;
+    io.stderr.write(`plumeplan compare: ${error.message}\n\n${COMPARE_USAGE}`);
+    return 2;
+  }
+  if (args === 'help') {
+    io.stdout.write(COMPARE_USAGE);
+    return 0;
+  }
+  const progress = createProgressReporter(io.stderr, io.now);
+  try {
+    if (!(await checkOutFolder(args.outDirectory, io, 'compare'))) return 2;
+    const scenarioA = await loadScenarioForCommand(args.pathA, io, 'compare');
+    if (scenarioA === null) return 2;
+    const scenarioB = await loadScenarioForCommand(args.pathB, io, 'compare');
+    if (scenarioB === null) return 2;
+    const run = (scenario: Scenario, share: number, offset: number, name: string) =>
+      executeScenario(scenario, args.mode ?? scenario.solver.mode, (fraction, message) => progress.update(offset + share * fraction, `${name}: ${message}`), options.solve);
+    const resultA = await run(scenarioA, 0.5, 0, 'A');
+    const resultB = await run(scenarioB, 0.5, 0.5, 'B');
+    progress.update(1, 'comparing');
+    const written = await writeComparisonFolder(args.outDirectory, { path: args.pathA, scenario: scenarioA, result: resultA }, { path: args.pathB, scenario: scenarioB, result: resultB }, args.levels_ug_m3);
+    progress.finish();
+    io.stdout.write(describeComparison(written.comparison, written.directory, written.files));
+    return 0;
+  } catch (error) {
+    progress.finish();
+    return reportFailure(error, io, 'compare');
+  }
+}
+
+/** One side as the command ran it. */
+export interface ComparisonSide {
+  /** the scenario file, shown as the side's label with the scenario's name */
+  path: string;
+  scenario: Scenario;
+  result: ScenarioRunResult;
+}
+
+/**
+ * Compare two runs and write the comparison folder (comparison.json, difference.geojson, a/, b/).
+ *
+ * @param directory the folder (created if missing)
+ * @param a the reference side
+ * @param b the other side
+ * @param levels_ug_m3 levels whose areas are compared; default round numbers across the larger peak
+ * @returns the comparison, the folder and the files written
+ */
+export async function writeComparisonFolder(
+  directory: string,
+  a: ComparisonSide,
+  b: ComparisonSide,
+  levels_ug_m3?: number[],
+): Promise<{ comparison: Comparison; directory: string; files: string[]; difference: DifferenceCollection }> {
+  const levelsChosen = levels_ug_m3 === undefined ? 'default' : 'given';
+  const levels =
+    levels_ug_m3 ?? defaultFootprintLevels(peakOf(a.result) >= peakOf(b.result) ? a.result.footprint_ug_m3 : b.result.footprint_ug_m3);
+  const comparison = compareRuns(side(a), side(b), { levels_ug_m3: levels });
+  const difference = differenceFootprint(comparison);
+  const json = comparisonJson(
+    comparison,
+    levelsChosen === 'given' ? 'given (--levels)' : 'round numbers (1-2-5 series) across the range of the run with the larger peak',
+  );
+  await mkdir(directory, { recursive: true });
+  await writeResultFolder(path.join(directory, 'a'), a.scenario, a.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
+  await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
+  await writeFile(path.join(directory, 'comparison.json'), `${JSON.stringify(json, null, 2)}\n`, 'utf8');
+  await writeFile(path.join(directory, 'difference.geojson'), formatFootprint(difference), 'utf8');
+  return { comparison, directory, files: ['comparison.json', 'difference.geojson', 'a/', 'b/'], difference };
+}
+
+function side(s: ComparisonSide): ComparedRun {
+  const { grid } = s.result;
+  return {
+    label: `${s.scenario.name} (${s.path})`,
+    result: s.result,
+    receptors: s.scenario.receptors.map((receptor) => {
+      const [x_m, y_m] = grid.projection.toLocal(receptor.lon, receptor.lat);
+      return { id: receptor.id, x_m, y_m };
+    }),
+  };
+}
+
+function peakOf(result: ScenarioRunResult): number {
+  let peak = 0;
+  for (const value of result.footprint_ug_m3) if (value > peak) peak = value;
+  return peak;
+}
+
+/** What stdout says after a comparison. */
+export function describeComparison(comparison: Comparison, directory: string, files: string[]): string {
+  const json = comparisonJson(comparison, '');
+  const lines = [
+    `Compared A: ${comparison.a.label}`,
+    `    with B: ${comparison.b.label}`,
+    `Results written to ${path.resolve(directory)}: ${files.join(', ')}`,
+  ];
+  if (comparison.identical) lines.push('B is identical to A: every difference is exactly zero');
+  else {
+    const { a, b, largestIncrease, largestDecrease } = json as {
+      a: { peak_ug_m3: number };
+      b: { peak_ug_m3: number };
+      largestIncrease: { delta_ug_m3: number };
+      largestDecrease: { delta_ug_m3: number };
+    };
+    lines.push(`Peak ${a.peak_ug_m3} -> ${b.peak_ug_m3} ug/m3; largest increase ${largestIncrease.delta_ug_m3}, largest decrease ${largestDecrease.delta_ug_m3} ug/m3`);
+  }
+  const receptors = (json.receptors as { id: string; a_ug_m3: number; b_ug_m3: number; delta_ug_m3: number; change_pct: number | null }[]) ?? [];
+  if (receptors.length > 0) {
+    lines.push('Receptors (A -> B, ug/m3):');
+    for (const r of receptors) lines.push(`  ${r.id}: ${r.a_ug_m3} -> ${r.b_ug_m3} (${r.delta_ug_m3 >= 0 ? '+' : ''}${r.delta_ug_m3}${r.change_pct === null ? '' : `, ${r.change_pct >= 0 ? '+' : ''}${r.change_pct} %`})`);
+  }
+  const areas = (json.levels as { areas: { level_ug_m3: number; a_m2: number; b_m2: number; change_pct: number | null }[] }).areas;
+  if (areas.length > 0) {
+    const hectares = (m2: number): number => Number((m2 / 10_000).toPrecision(2));
+    lines.push('Ground at or above each level (ha, A -> B):');
+    for (const level of areas) lines.push(`  ${level.level_ug_m3} ug/m3: ${hectares(level.a_m2)} -> ${hectares(level.b_m2)}${level.change_pct === null ? '' : ` (${level.change_pct >= 0 ? '+' : ''}${level.change_pct} %)`}`);
+  }
+  if (comparison.verdictChanges.length > 0) {
+    lines.push('Screening verdicts that change:');
+    for (const change of comparison.verdictChanges) lines.push(`  ${change.standard} at ${change.where}: ${change.a} -> ${change.b}`);
+  }
+  for (const note of comparison.notes) lines.push(`Note: ${note}`);
+  lines.push(`Caution: ${SCREENING_CAUTION}`);
+  return `${lines.join('\n')}\n`;
+}
