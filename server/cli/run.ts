@@ -18,17 +18,21 @@ import { createSeriesSolverPool, defaultSeriesThreads } from '../jobs/seriesSolv
 import { solveGridSteadyInWorker } from '../jobs/solveInWorker.ts';
 import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
+import { resolveCrs, type ExportCrs } from '../writers/crs.ts';
+import { runProvenance } from '../writers/provenance.ts';
 import { writeResultFolder, type WrittenResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
 
-export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--resolution-check]
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--resolution-check] [--crs EPSG:n] [--quick]
 
 Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
   summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
   receptors.csv      one row per receptor, concentrations in ug/m3
   footprint.geojson  ground-level isopleth bands (WGS 84 lon/lat), lower_ug_m3 and upper_ug_m3
+  ground.tif         the ground-level field as a float32 GeoTIFF (the site's UTM zone, or --crs)
+  map.svg, map.png   the site map figure: bands, sources, receptors, legend, scale, caution
 
 Options:
   -o, --out DIR      folder for the results (required)
@@ -39,6 +43,9 @@ Options:
   -r, --resolution-check
                      steady grid runs: solve again at half the cell size and report how much
                      each figure changes (made without asking when the finer grid is small)
+      --crs EPSG:n   CRS of ground.tif and the map figure; default the site's WGS 84 UTM zone;
+                     e.g. EPSG:27700 (British National Grid), EPSG:3035, any EPSG:326nn/327nn
+  -q, --quick        leave out the rendered files (map.png), the slowest to write
   -h, --help         show this help
 
 Steady grid runs also report how far their figures are from the Gaussian mode's, receptor by
@@ -55,6 +62,8 @@ interface RunArguments {
   mode?: SolverMode;
   levels_ug_m3?: number[];
   resolutionCheck?: boolean;
+  crs?: ExportCrs;
+  quick: boolean;
 }
 
 export interface RunCommandOptions {
@@ -86,6 +95,7 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
   }
 
   const progress = createProgressReporter(io.stderr, io.now);
+  const startedAt = new Date();
   try {
     // A folder argument that names a file is caught now, not after a long run.
     const existing = await stat(args.outDirectory).catch(() => null);
@@ -131,7 +141,12 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
       await pool?.close();
     }
     progress.update(1, 'writing the result folder');
-    const written = await writeResultFolder(args.outDirectory, scenario, result, { levels_ug_m3: args.levels_ug_m3 });
+    const written = await writeResultFolder(args.outDirectory, scenario, result, {
+      levels_ug_m3: args.levels_ug_m3,
+      crs: args.crs,
+      outputs: args.quick ? 'quick' : 'full',
+      provenance: runProvenance(scenario, { runDate: startedAt, command: commandLine(argv) }),
+    });
     progress.finish();
     io.stdout.write(describeRun(scenario, result, written));
     return 0;
@@ -147,6 +162,8 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     mode: { type: 'string', short: 'm' },
     levels: { type: 'string', short: 'l' },
     'resolution-check': { type: 'boolean', short: 'r' },
+    crs: { type: 'string' },
+    quick: { type: 'boolean', short: 'q' },
     help: { type: 'boolean', short: 'h' },
   });
   if (options.help === true) return 'help';
@@ -163,7 +180,24 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     mode: typeof options.mode === 'string' ? parseMode(options.mode) : undefined,
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
     resolutionCheck: options['resolution-check'] === true,
+    crs: typeof options.crs === 'string' ? parseCrs(options.crs) : undefined,
+    quick: options.quick === true,
   };
+}
+
+/** Read `--crs`: an EPSG code plumeplan knows. */
+function parseCrs(text: string): ExportCrs {
+  try {
+    return resolveCrs(text, '--crs');
+  } catch (error) {
+    throw new UsageError((error as Error).message);
+  }
+}
+
+/** The command as typed, for the reproducibility block: arguments quoted where the shell would need it. */
+export function commandLine(argv: string[]): string {
+  const quote = (argument: string): string => (/^[\w@%+=:,./-]+$/.test(argument) ? argument : `'${argument.replaceAll("'", "'\\''")}'`);
+  return ['plumeplan', 'run', ...argv.map(quote)].join(' ');
 }
 
 /** Whether a run makes many steady solves (a pool of worker threads takes them). */
