@@ -361,7 +361,9 @@ function receptorSymbols(scenario: Scenario, project: (p: Position) => [number, 
     return (
       `<g class="receptor" data-id="${escapeXml(receptor.id)}">` +
       `<circle cx="${num(x)}" cy="${num(y)}" r="5" fill="#ffffff" stroke="${RECEPTOR_COLOUR}" stroke-width="2.4"/>` +
-      `<text x="${num(x + 9)}" y="${num(y + 4)}" font-size="11" fill="${RECEPTOR_COLOUR}" stroke="#ffffff" stroke-width="3" paint-order="stroke" stroke-linejoin="round">${escapeXml(receptor.id)}</text></g>`
+      // The white halo is a text of its own under the label (paint-order is not drawn by every renderer).
+      `<text x="${num(x + 9)}" y="${num(y + 4)}" font-size="11" fill="#ffffff" stroke="#ffffff" stroke-width="3" stroke-linejoin="round">${escapeXml(receptor.id)}</text>` +
+      `<text x="${num(x + 9)}" y="${num(y + 4)}" font-size="11" fill="${RECEPTOR_COLOUR}">${escapeXml(receptor.id)}</text></g>`
     );
   });
 }
