@@ -33,6 +33,9 @@ Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created 
   footprint.geojson  ground-level isopleth bands (WGS 84 lon/lat), lower_ug_m3 and upper_ug_m3
   ground.tif         the ground-level field as a float32 GeoTIFF (the site's UTM zone, or --crs)
   map.svg, map.png   the site map figure: bands, sources, receptors, legend, scale, caution
+  report.html, report.pdf   the consultation report (A4): caution, map, receptors, sources, method
+  receptors-with-caution.csv   receptors.csv after comment lines with the caution and provenance
+  plumeplan-run.zip  every file above, the scenario as run and manifest.json (SHA-256 of each)
 
 Options:
   -o, --out DIR      folder for the results (required)
@@ -45,7 +48,7 @@ Options:
                      each figure changes (made without asking when the finer grid is small)
       --crs EPSG:n   CRS of ground.tif and the map figure; default the site's WGS 84 UTM zone;
                      e.g. EPSG:27700 (British National Grid), EPSG:3035, any EPSG:326nn/327nn
-  -q, --quick        leave out the rendered files (map.png), the slowest to write
+  -q, --quick        leave out the rendered files (map.png, report.pdf), the slowest to write
   -h, --help         show this help
 
 Steady grid runs also report how far their figures are from the Gaussian mode's, receptor by

@@ -111,11 +111,12 @@ describe('run', () => {
     expect(summary.footprint.levels_ug_m3).toEqual([1, 2, 5]);
   });
 
-  it('writes ground.tif in the CRS named by --crs, and leaves map.png out with --quick', async () => {
+  it('writes ground.tif in the CRS named by --crs, and leaves map.png and report.pdf out with --quick', async () => {
     const out = path.join(scratch, 'out-crs');
     const run = capture();
     expect(await main(['run', smallDemo(), '--out', out, '--mode', 'gaussian', '--crs', 'EPSG:27700', '--quick'], run.io)).toBe(0);
-    expect(run.stdout()).toContain('footprint.geojson, ground.tif, map.svg\n');
+    expect(run.stdout()).toContain('footprint.geojson, receptors-with-caution.csv, ground.tif, map.svg, report.html, plumeplan-run.zip\n');
+    expect(existsSync(path.join(out, 'report.pdf'))).toBe(false);
     expect(existsSync(path.join(out, 'map.png'))).toBe(false);
     expect(readFileSync(path.join(out, 'map.svg'), 'utf8')).toContain('(EPSG:27700)');
   });
