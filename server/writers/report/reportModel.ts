@@ -129,12 +129,21 @@ function mapSection(input: ReportInput): ReportSection {
 
 function receptorSection(input: ReportInput): ReportSection {
   const { scenario, result } = input;
-  const keys = result.receptorColumns.map((column) => column.key);
+  const assessment = result.extraSummary.assessment as
+    | { standards?: StandardSummary[]; note?: string; definitions?: string }
+    | undefined;
+  // A series or a wind rose gives each standard's statistic per receptor; steady weather gives the scenario's
+  // standards back with a note (one hour of one weather is no standard's statistic).
+  const evaluated = assessment?.standards !== undefined && assessment.standards.every((standard) => Array.isArray(standard.receptors));
+  // With the standards' own table below, this table keeps to the period mean and the highest hour.
+  const keys = result.receptorColumns
+    .map((column) => column.key)
+    .filter((key) => !evaluated || key === 'mean_ug_m3' || key === 'max_ug_m3' || key === 'concentration_ug_m3');
   const background = scenario.assessment?.background_ug_m3;
   const steady = result.weatherKind === 'steady';
   const headings = ['id', 'receptor', 'height [m]', ...keys.map(columnHeading)];
   const numeric = [false, false, true, ...keys.map(() => true)];
-  const widths = [1.2, 2.6, 0.8, ...keys.map(() => 1.2)];
+  const widths = [1.3, 2.6, 0.9, ...keys.map(() => 1.3)];
   if (steady && background !== undefined) {
     headings.push('PC + background [µg/m³]');
     numeric.push(true);
@@ -156,13 +165,7 @@ function receptorSection(input: ReportInput): ReportSection {
       note: background === undefined ? 'No background concentration was given in the scenario.' : `Background taken as ${fig(background)} µg/m³ (from the scenario).`,
     },
   ];
-  const assessment = result.extraSummary.assessment as
-    | { standards?: StandardSummary[]; note?: string; definitions?: string }
-    | undefined;
   const paragraphs: string[] = [];
-  // A series or a wind rose gives each standard's statistic per receptor; steady weather gives the scenario's
-  // standards back with a note (one hour of one weather is no standard's statistic).
-  const evaluated = assessment?.standards !== undefined && assessment.standards.every((standard) => Array.isArray(standard.receptors));
   if (evaluated && assessment?.standards !== undefined) {
     const standardRows: string[][] = [];
     for (const standard of assessment.standards) {
@@ -284,7 +287,7 @@ function sourceSection(scenario: Scenario, result: ScenarioRunResult): ReportSec
         headings: ['id', 'name', 'kind', 'lat, lon', 'height [m]', 'exit: diameter, velocity, temperature', 'effective height [m]', 'emission [g/s]'],
         numeric: [false, false, false, false, true, false, true, true],
         rows,
-        widths: [1.1, 2, 0.6, 1.5, 0.7, 1.8, 0.9, 0.8],
+        widths: [1.2, 1.9, 0.6, 1.5, 0.8, 1.7, 0.9, 1],
         note: 'Effective height: release height after plume rise (Briggs), for steady weather; in a series it changes hour by hour.',
       },
     ],

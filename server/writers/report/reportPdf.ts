@@ -111,6 +111,14 @@ function paragraph(doc: Doc, text: string, options: { size?: number; colour?: st
 }
 
 function drawSection(doc: Doc, section: ReportSection): void {
+  // Keep the heading with what follows it: the paragraphs and the first table when that table is short.
+  doc.font(REGULAR).fontSize(9.5);
+  let following = section.paragraphs.reduce((sum, text) => sum + doc.heightOfString(text, { width: textWidth(doc) }) + 5, 0);
+  if (section.figure === undefined && section.tables.length > 0) {
+    const first = tableHeight(doc, section.tables[0]);
+    if (first < (pageBottom(doc) - doc.page.margins.top) / 2) following += first;
+  }
+  ensureRoom(doc, 40 + following);
   heading(doc, section.heading);
   for (const text of section.paragraphs) paragraph(doc, text);
   if (section.figure !== undefined) {
@@ -133,6 +141,18 @@ function drawSection(doc: Doc, section: ReportSection): void {
   }
   for (const table of section.tables) drawTable(doc, table);
   for (const text of section.after ?? []) paragraph(doc, text, { size: 8, colour: MUTED });
+}
+
+/** Height a table takes when drawn whole: caption, heading row and every row. */
+function tableHeight(doc: Doc, table: ReportTable): number {
+  const width = textWidth(doc);
+  const total = table.widths.reduce((sum, w) => sum + w, 0);
+  const columns = table.widths.map((w) => (w / total) * width);
+  const rowHeight = (cells: string[], font: string): number => {
+    doc.font(font).fontSize(8);
+    return Math.max(...cells.map((cell, c) => doc.heightOfString(cell, { width: columns[c] - 6 }))) + 6;
+  };
+  return 14 + rowHeight(table.headings, BOLD) + table.rows.reduce((sum, row) => sum + rowHeight(row, REGULAR), 0);
 }
 
 /** A table with a shaded heading row, repeated at the top of each page it runs onto. */
@@ -164,7 +184,7 @@ function drawTable(doc: Doc, table: ReportTable): void {
   };
 
   // A table shorter than half a page is kept on one page; a longer one starts with at least one row.
-  const whole = 14 + rowHeight(table.headings, BOLD) + table.rows.reduce((sum, row) => sum + rowHeight(row, REGULAR), 0);
+  const whole = tableHeight(doc, table);
   const usable = pageBottom(doc) - doc.page.margins.top;
   doc.font(BOLD).fontSize(9);
   ensureRoom(doc, whole < usable / 2 ? whole : 14 + rowHeight(table.headings, BOLD) + (table.rows.length > 0 ? rowHeight(table.rows[0], REGULAR) : 0));
