@@ -123,6 +123,7 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
   out.push(...graticule(extent, px));
   for (const layer of options.contextLayers ?? []) out.push(...contextPaths(layer, project));
   out.push(...gridOutline(result, toCrs, px));
+  out.push(...siteBoundaryPath(scenario, project));
   out.push(...areaSourcePaths(scenario, project));
   out.push(...pointSourceSymbols(scenario, project));
   out.push(...peakSymbol(result, project));
@@ -319,6 +320,13 @@ function gridOutline(result: ScenarioRunResult, toCrs: (lon: number, lat: number
   return [`<path class="grid-edge" d="${d.join('')}Z" fill="none" stroke="#8c8379" stroke-width="1.5" stroke-dasharray="8 4"/>`];
 }
 
+/** The site's boundary (the fence), when the scenario gives one: peaks are looked for outside it. */
+function siteBoundaryPath(scenario: Scenario, project: (p: Position) => [number, number]): string[] {
+  const boundary = scenario.site.boundary;
+  if (boundary === undefined) return [];
+  return [`<path class="site-boundary" d="${pathOfRings([boundary], project, true)}" fill="none" stroke="${INK}" stroke-width="1.6" stroke-dasharray="2 3"/>`];
+}
+
 function areaSourcePaths(scenario: Scenario, project: (p: Position) => [number, number]): string[] {
   return scenario.sources
     .filter((source) => source.kind === 'area')
@@ -459,7 +467,12 @@ function legend(
   }
   y += 20;
   const peak = findPeak(result);
-  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">ground-level maximum ${peak.concentration_ug_m3} µg/m³</text>`);
+  const offSite = scenario.site.boundary !== undefined;
+  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">${offSite ? 'highest off the site' : 'ground-level maximum'} ${peak.concentration_ug_m3} µg/m³</text>`);
+  if (peak.onSite !== undefined) {
+    y += 14;
+    out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">highest on the site ${peak.onSite.concentration_ug_m3} µg/m³</text>`);
+  }
   y += 26;
   out.push(`<line x1="0" y1="${y - 12}" x2="250" y2="${y - 12}" stroke="#d8d0c4"/>`);
   const symbol = (drawing: string, text: string): void => {
@@ -477,8 +490,11 @@ function legend(
   }
   symbol(
     `<g transform="translate(15 Y0)" stroke="${INK}" stroke-width="1.6" fill="none"><circle r="6"/><path d="M-10 0H-3M3 0H10M0 -10V-3M0 3V10"/></g>`,
-    'point of maximum impact',
+    scenario.site.boundary !== undefined ? 'maximum impact off the site' : 'point of maximum impact',
   );
+  if (scenario.site.boundary !== undefined) {
+    symbol(`<rect x="4" y="-7" width="22" height="14" transform="translate(0 Y0)" fill="none" stroke="${INK}" stroke-width="1.6" stroke-dasharray="2 3"/>`, 'site boundary');
+  }
   symbol(`<line x1="2" y1="Y0" x2="28" y2="Y0" stroke="#8c8379" stroke-width="1.5" stroke-dasharray="8 4"/>`, 'edge of the modelled grid');
   for (const layer of words.contextLayers) {
     symbol(`<line x1="2" y1="Y0" x2="28" y2="Y0" stroke="${CONTEXT_COLOUR}" stroke-width="1"/>`, truncate(layer.name, 30));

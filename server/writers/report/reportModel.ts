@@ -213,10 +213,14 @@ function peakSection(input: ReportInput): ReportSection {
     id: 'peak',
     heading: 'Point of maximum impact',
     paragraphs: [
-      `The highest ground-level ${peak.statistic === 'mean' ? 'mean ' : ''}concentration on the grid is ${peak.concentration_ug_m3} µg/m³, ` +
+      `The highest ground-level ${peak.statistic === 'mean' ? 'mean ' : ''}concentration ${input.scenario.site.boundary !== undefined ? 'off the site' : 'on the grid'} is ${peak.concentration_ug_m3} µg/m³, ` +
         `in the cell centred at lat ${peak.lat}, lon ${peak.lon} (${offset}; ` +
         `${input.map.crs.geographic ? '' : `easting ${Math.round(easting)} m, northing ${Math.round(northing)} m in `}EPSG:${input.map.crs.epsg}). ` +
         'It is a cell value: the true maximum may lie anywhere in that cell and be higher.',
+      `Where it was looked for: ${peak.where}.`,
+      ...(peak.onSite !== undefined
+        ? [`${peak.onSite.label}: ${peak.onSite.concentration_ug_m3} µg/m³ at lat ${peak.onSite.lat}, lon ${peak.onSite.lon}.`]
+        : []),
     ],
     tables: [],
   };

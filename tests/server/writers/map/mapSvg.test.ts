@@ -63,6 +63,15 @@ describe('map.svg', () => {
     expect(structure.size).toEqual([String(MAP_WIDTH), String(MAP_HEIGHT)]);
   });
 
+  it('draws the site boundary when the scenario gives one, and names the peak as off the site', () => {
+    const fenced = { ...scenario, site: { ...scenario.site, boundary: [[-2.2852, 54.0603], [-2.2830, 54.0603], [-2.2830, 54.0618], [-2.2852, 54.0618], [-2.2852, 54.0603]] as [number, number][] } };
+    const svg = renderMapSvg(fenced, result, { levels_ug_m3: [0.5, 1, 2, 5] }).svg;
+    expect(svg).toMatch(/<path class="site-boundary" d="M[\d.]+ [\d.]+(L[\d.]+ [\d.]+){4}Z"/);
+    expect(svg).toContain('>site boundary<');
+    expect(svg).toContain('>maximum impact off the site<');
+    expect(figure.svg).not.toContain('site-boundary');
+  });
+
   it('carries the screening caution as text under the figure and in its description', () => {
     const cautionLines = [...figure.svg.matchAll(/<g class="caution">([\s\S]*?)<\/g>/g)][0][1];
     const text = [...cautionLines.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((match) => match[1]).join(' ');
