@@ -18,6 +18,8 @@ import { createSeriesSolverPool, defaultSeriesThreads } from '../jobs/seriesSolv
 import { solveGridSteadyInWorker } from '../jobs/solveInWorker.ts';
 import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
+import { resolveCrs, type ExportCrs } from '../writers/crs.ts';
+import { runProvenance } from '../writers/provenance.ts';
 import { writeResultFolder, type WrittenResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
@@ -27,12 +29,17 @@ import { levelsFromPercentages } from '../../solver/assessment/footprintAreas.ts
 import { verdictTable } from '../writers/assessmentFigures.ts';
 import type { ScreeningVerdicts } from '../../solver/assessment/verdicts.ts';
 
-export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--percent-of STANDARD] [--resolution-check]
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--percent-of STANDARD] [--resolution-check] [--crs EPSG:n] [--quick]
 
 Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
   summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
   receptors.csv      one row per receptor, concentrations in ug/m3
   footprint.geojson  ground-level isopleth bands (WGS 84 lon/lat), lower_ug_m3 and upper_ug_m3
+  ground.tif         the ground-level field as a float32 GeoTIFF (the site's UTM zone, or --crs)
+  map.svg, map.png   the site map figure: bands, sources, receptors, legend, scale, caution
+  report.html, report.pdf   the consultation report (A4): caution, map, receptors, sources, method
+  receptors-with-caution.csv   receptors.csv after comment lines with the caution and provenance
+  plumeplan-run.zip  every file above, the scenario as run and manifest.json (SHA-256 of each)
 
 Options:
   -o, --out DIR      folder for the results (required)
@@ -46,6 +53,9 @@ Options:
   -r, --resolution-check
                      steady grid runs: solve again at half the cell size and report how much
                      each figure changes (made without asking when the finer grid is small)
+      --crs EPSG:n   CRS of ground.tif and the map figure; default the site's WGS 84 UTM zone;
+                     e.g. EPSG:27700 (British National Grid), EPSG:3035, any EPSG:326nn/327nn
+  -q, --quick        leave out the rendered files (map.png, report.pdf), the slowest to write
   -h, --help         show this help
 
 Steady grid runs also report how far their figures are from the Gaussian mode's, receptor by
@@ -70,6 +80,8 @@ interface RunArguments {
   resolutionCheck?: boolean;
   /** the standard whose limit --levels are percentages of */
   percentOf?: string;
+  crs?: ExportCrs;
+  quick: boolean;
 }
 
 export interface RunCommandOptions {
@@ -101,6 +113,7 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
   }
 
   const progress = createProgressReporter(io.stderr, io.now);
+  const startedAt = new Date();
   try {
     // A folder argument that names a file is caught now, not after a long run.
     if (!(await checkOutFolder(args.outDirectory, io, 'run'))) return 2;
@@ -116,7 +129,12 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
 
     const result = await executeScenario(scenario, mode, (fraction, message) => progress.update(fraction, message), options.solve, args.resolutionCheck === true ? 'always' : 'auto');
     progress.update(1, 'writing the result folder');
-    const written = await writeResultFolder(args.outDirectory, scenario, result, levels);
+    const written = await writeResultFolder(args.outDirectory, scenario, result, {
+      ...levels,
+      crs: args.crs,
+      outputs: args.quick ? 'quick' : 'full',
+      provenance: runProvenance(scenario, { runDate: startedAt, command: commandLine(argv) }),
+    });
     progress.finish();
     io.stdout.write(describeRun(scenario, result, written));
     return 0;
@@ -133,6 +151,8 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     levels: { type: 'string', short: 'l' },
     'resolution-check': { type: 'boolean', short: 'r' },
     'percent-of': { type: 'string', short: 'p' },
+    crs: { type: 'string' },
+    quick: { type: 'boolean', short: 'q' },
     help: { type: 'boolean', short: 'h' },
   });
   if (options.help === true) return 'help';
@@ -150,6 +170,8 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     levels_ug_m3: typeof options.levels === 'string' ? parseLevels(options.levels) : undefined,
     resolutionCheck: options['resolution-check'] === true,
     percentOf: typeof options['percent-of'] === 'string' ? options['percent-of'] : undefined,
+    crs: typeof options.crs === 'string' ? parseCrs(options.crs) : undefined,
+    quick: options.quick === true,
   };
 }
 
@@ -255,6 +277,21 @@ export async function executeScenario(
     process.off('SIGINT', onInterrupt);
     await pool?.close();
   }
+}
+
+/** Read `--crs`: an EPSG code plumeplan knows. */
+function parseCrs(text: string): ExportCrs {
+  try {
+    return resolveCrs(text, '--crs');
+  } catch (error) {
+    throw new UsageError((error as Error).message);
+  }
+}
+
+/** The command as typed, for the reproducibility block: arguments quoted where the shell would need it. */
+export function commandLine(argv: string[]): string {
+  const quote = (argument: string): string => (/^[\w@%+=:,./-]+$/.test(argument) ? argument : `'${argument.replaceAll("'", "'\\''")}'`);
+  return ['plumeplan', 'run', ...argv.map(quote)].join(' ');
 }
 
 /** Whether a run makes many steady solves (a pool of worker threads takes them). */

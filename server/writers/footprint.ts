@@ -40,6 +40,8 @@ export interface FootprintBandProperties {
   upper_ug_m3: number | null;
   /** plain label, e.g. "10 to 20 ug/m3" or "50 ug/m3 and above" */
   label: string;
+  /** the screening caution, on every band: GIS software shows a feature's fields, not the collection's */
+  caution: string;
 }
 
 export interface FootprintCollectionProperties {
@@ -208,6 +210,7 @@ export function footprintBands(
         lower_ug_m3: lower,
         upper_ug_m3: upper,
         label: upper === null ? `${lower} ug/m3 and above` : `${lower} to ${upper} ug/m3`,
+        caution: SCREENING_CAUTION,
       },
       geometry,
     });

@@ -1,7 +1,14 @@
 /**
- * Writes the result folder: summary.json, receptors.csv, footprint.geojson and any extra files the run
- * produced (a wind-rose picture, for instance). The folder is created if it does not exist; files of
- * the same names are replaced.
+ * The result folder of a run: summary.json, receptors.csv, footprint.geojson and any extra files the run
+ * produced (a wind-rose picture, for instance), then the consultation pack: receptors-with-caution.csv,
+ * ground.tif (the ground field as a GeoTIFF), map.svg and map.png (the site map figure), report.html and
+ * report.pdf (the report), and one zip holding every file with a manifest of their SHA-256 checksums.
+ *
+ * `buildResultFiles` makes the first files in memory (text; the server stores them for a run),
+ * `buildConsultationPack` the pack (text and bytes; the server can offer them as downloads), and
+ * `writeResultFolder` writes both. `outputs: 'quick'` leaves out the rendered files (map.png and
+ * report.pdf), the slowest to make; `'core'` the whole pack. The folder is created if it does not exist;
+ * files of the same names are replaced.
  *
  * A reused folder holds only this run's files: each run also writes `.plumeplan-files.json`, the list of
  * the files it wrote, and the next run into the folder removes the files on that list that it does not
@@ -18,11 +25,35 @@ import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
 import { buildSummary, type ResultSummary } from './summary.ts';
 import { windRoseSvg } from './windRoseSvg.ts';
 import { levelsFromPercentages } from '../../solver/assessment/footprintAreas.ts';
+import type { CrsRequest } from './crs.ts';
+import { writeGroundGeoTiff } from './groundGeoTiff.ts';
+import { renderMapSvg, type ContextLayer } from './map/mapSvg.ts';
+import { renderSvgToPng } from './map/mapPng.ts';
+import { runProvenance, type RunProvenance } from './provenance.ts';
+import { buildReceptorsCautionCsv } from './receptorsCautionCsv.ts';
+import { buildReportModel } from './report/reportModel.ts';
+import { renderReportHtml } from './report/reportHtml.ts';
+import { writeReportPdf } from './report/reportPdf.ts';
+import { buildRunZip } from './runZip.ts';
 
 export const SUMMARY_FILE = 'summary.json';
 export const RECEPTORS_FILE = 'receptors.csv';
 export const FOOTPRINT_FILE = 'footprint.geojson';
 export const WIND_ROSE_FILE = 'windrose.svg';
+export const RECEPTORS_CAUTION_FILE = 'receptors-with-caution.csv';
+export const GROUND_GEOTIFF_FILE = 'ground.tif';
+export const MAP_SVG_FILE = 'map.svg';
+export const MAP_PNG_FILE = 'map.png';
+export const REPORT_HTML_FILE = 'report.html';
+export const REPORT_PDF_FILE = 'report.pdf';
+export const RUN_ZIP_FILE = 'plumeplan-run.zip';
+
+/**
+ * Which files to make: 'full' every file; 'quick' all but the rendered ones (map.png, report.pdf), which
+ * take the longest; 'core' only summary.json, receptors.csv, footprint.geojson and the wind rose.
+ */
+export type ResultOutputs = 'full' | 'quick' | 'core';
+
 /** The list of the files the last run wrote into the folder (see the file comment). */
 export const RESULT_FILES_LIST = '.plumeplan-files.json';
 /** What the list says it is. */
@@ -35,6 +66,20 @@ export interface ResultFolderOptions {
   levelsBasis?: string;
   /** height of the ground-level field [m]; default 1.5 */
   groundLevelHeight_m?: number;
+  /** which files to make; default 'full' */
+  outputs?: ResultOutputs;
+  /** CRS of ground.tif and the map figure; default the site's WGS 84 UTM zone */
+  crs?: CrsRequest;
+  /** the user's context layers, drawn on the map */
+  contextLayers?: ContextLayer[];
+  /** version, scenario checksum, run date and command; default: this version, now, "plumeplan run" */
+  provenance?: RunProvenance;
+}
+
+/** One file of the consultation pack. */
+export interface PackFileContent {
+  name: string;
+  data: string | Uint8Array;
 }
 
 export interface WrittenResultFolder {
@@ -68,15 +113,17 @@ export async function writeResultFolder(
 ): Promise<WrittenResultFolder> {
   // Build everything before touching the disk, so a failure leaves no half-written folder.
   const built = buildResultFiles(scenario, result, options);
+  const pack = (options.outputs ?? 'full') === 'core' ? [] : await buildConsultationPack(scenario, result, built, options);
 
   const existing = await stat(directory).catch(() => null);
   if (existing !== null && !existing.isDirectory()) {
     throw new RangeError(`result folder ${directory}: exists and is not a folder; give a folder to write the results into`);
   }
   await mkdir(directory, { recursive: true });
-  const names = built.contents.map(([name]) => name);
+  const names = [...built.contents.map(([name]) => name), ...pack.map((file) => file.name)];
   const removed = await removeEarlierResultFiles(directory, names);
   for (const [name, text] of built.contents) await writeFile(path.join(directory, name), text, 'utf8');
+  for (const file of pack) await writeFile(path.join(directory, file.name), file.data);
   await writeFile(
     path.join(directory, RESULT_FILES_LIST),
     `${JSON.stringify({ format: RESULT_FILES_FORMAT, note: 'written by plumeplan: the files of the last run into this folder', files: names }, null, 2)}\n`,
@@ -189,6 +236,52 @@ function standardFootprints(scenario: Scenario, result: ScenarioRunResult, heigh
       });
       return { name: field.name, file: `${slug}.geojson`, levels, collection };
     });
+}
+
+/**
+ * Make the consultation pack in memory: receptors-with-caution.csv, ground.tif, map.svg, map.png,
+ * report.html, report.pdf and the run zip (which holds the core files too).
+ *
+ * @param scenario the parsed scenario
+ * @param result what the run handed back
+ * @param built the core files (buildResultFiles) the pack goes with
+ * @param options outputs ('quick' leaves out map.png and report.pdf), CRS, context layers, provenance
+ * @returns the pack's files, in the order they are listed and written
+ * @throws RangeError for a CRS plumeplan does not know
+ * @example const pack = await buildConsultationPack(scenario, result, buildResultFiles(scenario, result));
+ */
+export async function buildConsultationPack(
+  scenario: Scenario,
+  result: ScenarioRunResult,
+  built: BuiltResultFiles,
+  options: ResultFolderOptions = {},
+): Promise<PackFileContent[]> {
+  const groundLevelHeight_m = options.groundLevelHeight_m ?? GROUND_LEVEL_HEIGHT_m;
+  const full = (options.outputs ?? 'full') === 'full';
+  const provenance = options.provenance ?? runProvenance(scenario);
+  const { summary, footprint } = built;
+  const rose = built.contents.find(([name]) => name === WIND_ROSE_FILE)?.[1];
+  const tif = await writeGroundGeoTiff(result, {
+    crs: options.crs,
+    scenarioName: scenario.name,
+    pollutant: scenario.pollutant.name,
+    height_m: groundLevelHeight_m,
+    version: provenance.version,
+    runDate: new Date(provenance.runDate),
+  });
+  const map = renderMapSvg(scenario, result, { crs: options.crs, footprint, contextLayers: options.contextLayers, provenance, groundLevelHeight_m });
+  const report = buildReportModel({ scenario, result, summary, footprint, map, windRoseSvg: rose, provenance });
+  const pack: PackFileContent[] = [
+    { name: RECEPTORS_CAUTION_FILE, data: buildReceptorsCautionCsv(scenario, result, provenance) },
+    { name: GROUND_GEOTIFF_FILE, data: tif.bytes },
+    { name: MAP_SVG_FILE, data: map.svg },
+  ];
+  if (full) pack.push({ name: MAP_PNG_FILE, data: renderSvgToPng(map.svg).bytes });
+  pack.push({ name: REPORT_HTML_FILE, data: renderReportHtml(report) });
+  if (full) pack.push({ name: REPORT_PDF_FILE, data: await writeReportPdf(report) });
+  const everything = [...built.contents.map(([name, data]) => ({ name, data })), ...pack];
+  pack.push({ name: RUN_ZIP_FILE, data: buildRunZip(everything, scenario, provenance).bytes });
+  return pack;
 }
 
 /**

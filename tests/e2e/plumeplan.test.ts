@@ -147,7 +147,8 @@ describe('plumeplan run on an hourly series in grid mode (the solver thread pool
       // receptors.csv rounds to 3 significant figures
       expect(Math.abs(Number(rows[r + 1][meanColumn]) - directMeans[r]) / directMeans[r]).toBeLessThan(5e-3);
     }
-  }, 60_000);
+    // The run writes the consultation pack too (GeoTIFF, figures, report, zip): give it the suite's usual room.
+  }, 120_000);
 
   it('Ctrl-C (SIGINT) during the demo year stops the pool at once: exit 130, nothing written', async () => {
     const out = path.join(scratch, 'interrupted-year');

@@ -111,6 +111,23 @@ describe('run', () => {
     expect(summary.footprint.levels_ug_m3).toEqual([1, 2, 5]);
   });
 
+  it('writes ground.tif in the CRS named by --crs, and leaves map.png and report.pdf out with --quick', async () => {
+    const out = path.join(scratch, 'out-crs');
+    const run = capture();
+    expect(await main(['run', smallDemo(), '--out', out, '--mode', 'gaussian', '--crs', 'EPSG:27700', '--quick'], run.io)).toBe(0);
+    expect(run.stdout()).toContain('footprint.geojson, receptors-with-caution.csv, ground.tif, map.svg, report.html, plumeplan-run.zip\n');
+    expect(existsSync(path.join(out, 'report.pdf'))).toBe(false);
+    expect(existsSync(path.join(out, 'map.png'))).toBe(false);
+    expect(readFileSync(path.join(out, 'map.svg'), 'utf8')).toContain('(EPSG:27700)');
+  });
+
+  it('refuses a CRS it does not know before running, naming --crs and what is allowed', async () => {
+    const run = capture();
+    expect(await main(['run', smallDemo(), '--out', path.join(scratch, 'out-bad-crs'), '--crs', 'EPSG:1234'], run.io)).toBe(2);
+    expect(run.stderr()).toMatch(/--crs: EPSG:1234 is not one plumeplan knows; allowed: .*EPSG:27700/);
+    expect(existsSync(path.join(scratch, 'out-bad-crs'))).toBe(false);
+  });
+
   it('says so when no ground reaches the lowest level given', async () => {
     const run = capture();
     expect(await main(['run', smallDemo(), '--out', path.join(scratch, 'out-high'), '--mode', 'gaussian', '--levels', '1e6'], run.io)).toBe(0);

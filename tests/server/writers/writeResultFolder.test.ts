@@ -19,7 +19,7 @@ describe('writeResultFolder', () => {
     const directory = path.join(scratch, 'nested', 'run-1');
     const rose = windRoseFromHours([{ windFrom_deg: 250, windSpeed_m_s: 4, stability: 'D' }] as never);
     const result = makeTestRunResult(grid, { windRose: { table: rose, caption: 'One test hour' } });
-    const written = await writeResultFolder(directory, scenario, result, { levels_ug_m3: [1, 5, 10] });
+    const written = await writeResultFolder(directory, scenario, result, { levels_ug_m3: [1, 5, 10], outputs: 'core' });
     expect(written.files).toEqual(['summary.json', 'receptors.csv', 'footprint.geojson', 'windrose.svg']);
     const summary = JSON.parse(readFileSync(path.join(directory, 'summary.json'), 'utf8'));
     const footprint = JSON.parse(readFileSync(path.join(directory, 'footprint.geojson'), 'utf8'));
@@ -45,11 +45,12 @@ describe('writeResultFolder', () => {
   it('a reused folder holds only this run\'s files: an earlier run\'s picture goes, the user\'s own files stay', async () => {
     const directory = path.join(scratch, 'reused');
     const rose = windRoseFromHours([{ windFrom_deg: 250, windSpeed_m_s: 4, stability: 'D' }] as never);
-    await writeResultFolder(directory, scenario, makeTestRunResult(grid, { windRose: { table: rose, caption: 'series' } }));
+    // Core files only here: the pack's files come and go by the same list.
+    await writeResultFolder(directory, scenario, makeTestRunResult(grid, { windRose: { table: rose, caption: 'series' } }), { outputs: 'core' });
     // The user's own files: one with a name the runs never write, and a folder.
     writeFileSync(path.join(directory, 'my-notes.txt'), 'keep me');
     mkdirSync(path.join(directory, 'maps'));
-    const written = await writeResultFolder(directory, scenario, makeTestRunResult(grid));
+    const written = await writeResultFolder(directory, scenario, makeTestRunResult(grid), { outputs: 'core' });
     expect(written.removed).toEqual(['windrose.svg']);
     expect(existsSync(path.join(directory, 'windrose.svg'))).toBe(false);
     expect(readdirSync(directory).sort()).toEqual(['.plumeplan-files.json', 'footprint.geojson', 'maps', 'my-notes.txt', 'receptors.csv', 'summary.json']);
@@ -60,10 +61,35 @@ describe('writeResultFolder', () => {
       JSON.stringify({ format: 'plumeplan.result-files/1', files: ['../outside.txt', 'maps', 'summary.json'] }),
     );
     writeFileSync(path.join(scratch, 'outside.txt'), 'not ours');
-    const again = await writeResultFolder(directory, scenario, makeTestRunResult(grid));
+    const again = await writeResultFolder(directory, scenario, makeTestRunResult(grid), { outputs: 'core' });
     expect(again.removed).toEqual([]);
     expect(existsSync(path.join(scratch, 'outside.txt'))).toBe(true);
     expect(existsSync(path.join(directory, 'maps'))).toBe(true);
+  });
+
+  it('writes the consultation pack beside them by default, and leaves out map.png and report.pdf when quick', async () => {
+    const full = await writeResultFolder(path.join(scratch, 'full'), scenario, makeTestRunResult(grid));
+    expect(full.files).toEqual([
+      'summary.json',
+      'receptors.csv',
+      'footprint.geojson',
+      'receptors-with-caution.csv',
+      'ground.tif',
+      'map.svg',
+      'map.png',
+      'report.html',
+      'report.pdf',
+      'plumeplan-run.zip',
+    ]);
+    const tif = readFileSync(path.join(scratch, 'full', 'ground.tif'));
+    expect(tif.subarray(0, 4)).toEqual(Buffer.from([0x4d, 0x4d, 0x00, 0x2a])); // big-endian TIFF
+    const png = readFileSync(path.join(scratch, 'full', 'map.png'));
+    expect(png.subarray(1, 4).toString('latin1')).toBe('PNG');
+    expect(readFileSync(path.join(scratch, 'full', 'map.svg'), 'utf8')).toContain(SCREENING_CAUTION.slice(0, 40));
+    // The same folder again, quick: the rendered files of the full run are removed by the folder's list.
+    const quick = await writeResultFolder(path.join(scratch, 'full'), scenario, makeTestRunResult(grid), { outputs: 'quick' });
+    expect(quick.files).toEqual(['summary.json', 'receptors.csv', 'footprint.geojson', 'receptors-with-caution.csv', 'ground.tif', 'map.svg', 'report.html', 'plumeplan-run.zip']);
+    expect(quick.removed).toEqual(['map.png', 'report.pdf']);
   });
 
   it('refuses a path that is a file', async () => {
