@@ -94,6 +94,7 @@ describe('the app', () => {
       'GET /api/runs/{id}/events',
       'POST /api/runs/{id}/cancel',
       'GET /api/runs/{id}/results/{name}',
+      'GET /api/runs/{id}/assessment',
     ]) {
       expect(routes).toContain(expected);
     }
