@@ -40,6 +40,9 @@ async function start(): Promise<void> {
   const token = env.PLUMEPLAN_TOKEN === undefined || env.PLUMEPLAN_TOKEN === '' ? undefined : env.PLUMEPLAN_TOKEN;
   const logger = pino({ level: env.PLUMEPLAN_LOG_LEVEL ?? 'info', base: { service: 'plumeplan' } });
 
+  // A promise nobody awaited must not take the server down: log it and keep serving.
+  process.on('unhandledRejection', (reason) => logger.error({ err: reason }, 'unhandled rejection'));
+
   const services = await openServices({ dataDir, logger });
   if (services.interruptedAtStart.length > 0) {
     logger.warn({ runs: services.interruptedAtStart.length }, 'runs a restart had stopped were marked interrupted');

@@ -154,6 +154,17 @@ export function openApiDocument(): JsonObject {
         parameters: [idParameter()],
         post: { summary: 'Cancel a queued or running run', responses: { '200': { description: 'cancelled', content: json(ref('Run')) }, '404': errorResponse('no such run'), '409': errorResponse('the run has already finished') } },
       },
+      '/api/runs/{id}/assessment': {
+        parameters: [idParameter()],
+        get: {
+          summary: "The assessment figures of a finished run (summary.json's assessment and peak, with the caution)",
+          responses: {
+            '200': { description: 'the figures', content: json({ type: 'object', properties: { id: { type: 'string' }, revision: { type: 'integer' }, assessment: {}, peak: {}, caution: { type: 'string' } } }) },
+            '404': errorResponse('no such run'),
+            '409': errorResponse('the run is not done'),
+          },
+        },
+      },
       '/api/runs/{id}/results/{name}': {
         parameters: [idParameter(), { name: 'name', in: 'path', required: true, schema: { type: 'string', enum: ['summary.json', 'receptors.csv', 'footprint.geojson', 'windrose.svg', 'ground-field.bin'] } }],
         get: {

@@ -56,14 +56,16 @@ export const limitJsonDepth: RequestHandler = (request, _response, next) => {
 
 /**
  * When the server has a token (it is bound beyond this machine), every /api request must carry
- * `Authorization: Bearer TOKEN`.
+ * `Authorization: Bearer TOKEN` (the progress stream, GET .../events, may give it as ?access_token=TOKEN).
  */
 export function requireToken(token: string): RequestHandler {
   const expected = Buffer.from(token, 'utf8');
   return (request: Request, _response: Response, next: NextFunction) => {
     const header = request.get('Authorization') ?? '';
     const match = /^Bearer (.+)$/.exec(header);
-    const given = Buffer.from(match?.[1] ?? '', 'utf8');
+    // A browser's EventSource cannot send headers: the progress stream also takes ?access_token=.
+    const queryToken = request.method === 'GET' && request.path.endsWith('/events') ? request.query.access_token : undefined;
+    const given = Buffer.from(match?.[1] ?? (typeof queryToken === 'string' ? queryToken : ''), 'utf8');
     if (given.length !== expected.length || !timingSafeEqual(given, expected)) {
       throw new ApiError(401, {
         error: 'Authorization: this server needs its access token: send Authorization: Bearer TOKEN',

@@ -2,7 +2,9 @@
  * Runs: submit (202 at once; an identical earlier run answers instead of a second solve), read the
  * status, follow progress as server-sent events, cancel, list, and download the result files.
  */
+import { readFile } from 'node:fs/promises';
 import { Router, type Response } from 'express';
+import { SUMMARY_FILE } from '../../writers/writeResultFolder.ts';
 import { z } from 'zod';
 import type { RunManager, RunUpdate } from '../../jobs/runManager.ts';
 import { RESULT_NAME_PATTERN, type ResultFileStore } from '../../storage/resultFiles.ts';
@@ -99,19 +101,18 @@ export function runRoutes(deps: RunRouteDependencies): Router {
     request.on('close', stop);
   });
 
+  router.get('/:id/assessment', async (request, response) => {
+    const id = idParam(request, 'id');
+    const run = doneRun(manager, id);
+    const summary = JSON.parse(await readFile(files.pathOf(id, SUMMARY_FILE), 'utf8')) as Record<string, unknown>;
+    response.json({ id, assessment: summary.assessment ?? null, peak: summary.peak ?? null, caution: summary.caution, revision: run.revision });
+  });
+
   router.get('/:id/results/:name', (request, response, next) => {
     const id = idParam(request, 'id');
     const name = request.params.name;
     if (!RESULT_NAME_PATTERN.test(name)) throw badRequest('name', name, 'the name of one of the run\'s result files (see "results" in GET /api/runs/:id)');
-    const run = manager.get(id);
-    if (run.status !== 'done') {
-      throw new ApiError(409, {
-        error: `run ${id} is ${run.status}; its results exist once it is done`,
-        field: 'id',
-        value: id,
-        allowed: 'a run whose status is done',
-      });
-    }
+    const run = doneRun(manager, id);
     const file = run.results.find((result) => result.name === name);
     if (file === undefined) {
       throw new ApiError(404, {
@@ -158,6 +159,20 @@ export function runJson(run: RunRecord): z.input<typeof import('../apiSchemas.ts
     finishedAt: run.finishedAt,
     results: run.results.map((file) => ({ ...file, url: `/api/runs/${run.id}/results/${file.name}` })),
   };
+}
+
+/** The run, which must be done (409 otherwise). */
+function doneRun(manager: RunManager, id: string): RunRecord {
+  const run = manager.get(id);
+  if (run.status !== 'done') {
+    throw new ApiError(409, {
+      error: `run ${id} is ${run.status}; its results exist once it is done`,
+      field: 'id',
+      value: id,
+      allowed: 'a run whose status is done',
+    });
+  }
+  return run;
 }
 
 function updateOf(run: RunRecord): RunUpdate {

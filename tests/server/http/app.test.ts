@@ -60,6 +60,11 @@ describe('the app', () => {
     await request(server.app).get('/api/scenarios').set('Authorization', 'Bearer wrong-token').expect(401);
     await request(server.app).post('/api/scenarios').send({ scenario: smallScenario() }).expect(401);
     await request(server.app).get('/api/scenarios').set('Authorization', 'Bearer a-long-test-token').expect(200);
+    // The progress stream (EventSource cannot send headers) takes it as a query parameter; nothing else does.
+    await request(server.app).get('/api/scenarios?access_token=a-long-test-token').expect(401);
+    const stream = await request(server.app).get('/api/runs/00000000-0000-4000-8000-000000000000/events?access_token=a-long-test-token');
+    expect(stream.status).toBe(404);
+    await request(server.app).get('/api/runs/00000000-0000-4000-8000-000000000000/events?access_token=wrong').expect(401);
     await request(server.app).get('/').expect(200);
   });
 
@@ -89,6 +94,7 @@ describe('the app', () => {
       'GET /api/runs/{id}/events',
       'POST /api/runs/{id}/cancel',
       'GET /api/runs/{id}/results/{name}',
+      'GET /api/runs/{id}/assessment',
     ]) {
       expect(routes).toContain(expected);
     }

@@ -101,6 +101,15 @@ describe('runs', () => {
     expect(Number(max.toPrecision(3))).toBeCloseTo(Math.max(peak.concentration_ug_m3, peak.onSite?.concentration_ug_m3 ?? 0), 6);
   });
 
+  it('serves the assessment figures of a finished run with the caution', async () => {
+    const response = await request(server.app).get(`/api/runs/${gaussianRun}/assessment`).expect(200);
+    expect(response.body.caution).toBe(SCREENING_CAUTION);
+    // The test scenario is the demo's: one steady state with two NO2 standards and a background.
+    expect(response.body.assessment).toMatchObject({ background_ug_m3: 14 });
+    expect(response.body.assessment.standards).toHaveLength(2);
+    expect(response.body.peak.concentration_ug_m3).toBeGreaterThan(0);
+  });
+
   it('answers an identical submission with the earlier run instead of solving twice', async () => {
     const again = await request(server.app).post('/api/runs').send({ scenarioId, mode: 'gaussian' }).expect(200);
     expect(again.body).toMatchObject({ id: gaussianRun, reused: true, status: 'done' });
