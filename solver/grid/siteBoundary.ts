@@ -15,7 +15,7 @@ import type { LocalGrid, LocalProjection } from './types.ts';
 /** The site boundary placed on a grid. */
 export interface SiteColumns {
   /** the boundary ring in local metres, closed */
-  ring_m: [number, number][];
+  ring_m: readonly (readonly [number, number])[];
   /** 1 where the column's centre is on the site, else 0; index i + nx * j */
   onSite: Uint8Array;
   /** number of columns on the site */
@@ -43,7 +43,7 @@ export function placeSiteBoundary(boundary: readonly [number, number][], project
  * Whether a point lies inside a closed ring (even-odd crossing rule; points on an edge count as inside).
  * @param ring_m closed ring [m]
  */
-export function isInsideRing(ring_m: readonly [number, number][], x_m: number, y_m: number): boolean {
+export function isInsideRing(ring_m: readonly (readonly [number, number])[], x_m: number, y_m: number): boolean {
   let inside = false;
   for (let v = 1; v < ring_m.length; v++) {
     const [x0, y0] = ring_m[v - 1];
@@ -72,7 +72,7 @@ export function isInsideRing(ring_m: readonly [number, number][], x_m: number, y
  * @param ring_m the boundary in local metres (placeSiteBoundary)
  * @example siteColumns(grid, placeSiteBoundary(scenario.site.boundary, grid.projection)).count
  */
-export function siteColumns(grid: Pick<LocalGrid, 'nx' | 'ny' | 'spacing_m' | 'xWest_m' | 'ySouth_m'>, ring_m: [number, number][]): SiteColumns {
+export function siteColumns(grid: Pick<LocalGrid, 'nx' | 'ny' | 'spacing_m' | 'xWest_m' | 'ySouth_m'>, ring_m: readonly (readonly [number, number])[]): SiteColumns {
   const { nx, ny, spacing_m, xWest_m, ySouth_m } = grid;
   const onSite = new Uint8Array(nx * ny);
   let xMin = Infinity;

@@ -3,20 +3,8 @@
  * the map inside the polygon; the best column of a map.
  * Positions are local metres (x east, y north of the site); rings are closed [x, y] lists.
  */
+import { isInsideRing, siteColumns } from '../grid/siteBoundary.ts';
 import type { LocalGrid } from '../grid/types.ts';
-
-/**
- * Whether (x, y) lies inside a closed ring (even-odd rule; a point exactly on an edge may fall either way).
- */
-export function insideRing(ring_m: readonly (readonly [number, number])[], x_m: number, y_m: number): boolean {
-  let inside = false;
-  for (let a = 0, b = ring_m.length - 1; a < ring_m.length; b = a++) {
-    const [xa, ya] = ring_m[a];
-    const [xb, yb] = ring_m[b];
-    if (ya > y_m !== yb > y_m && x_m < ((xb - xa) * (y_m - ya)) / (yb - ya) + xa) inside = !inside;
-  }
-  return inside;
-}
 
 function checkRing(ring_m: readonly (readonly [number, number])[], field: string): void {
   if (ring_m.length < 4) throw new RangeError(`${field}: a ring of ${ring_m.length} points; allowed: a closed ring of at least 4 points (first = last)`);
@@ -55,24 +43,17 @@ export function latticeInsideRing(ring_m: readonly (readonly [number, number])[]
     for (let m = Math.ceil(west / spacing_m); m * spacing_m <= east; m++) {
       const x = m * spacing_m;
       const y = n * spacing_m;
-      if (insideRing(ring_m, x, y)) points.push([x, y]);
+      if (isInsideRing(ring_m, x, y)) points.push([x, y]);
     }
   }
   if (points.length === 0) throw new RangeError(`${field}: no point of a ${spacing_m} m lattice falls inside it; use a smaller spacing`);
   return points;
 }
 
-/** 1 for each column whose centre lies inside the ring, index i + nx * j. */
+/** 1 for each column whose centre lies inside the ring, index i + nx * j (the site boundary's own rule, siteColumns). */
 export function columnsInsideRing(grid: LocalGrid, ring_m: readonly (readonly [number, number])[], field = 'site polygon'): Uint8Array {
   checkRing(ring_m, field);
-  const mask = new Uint8Array(grid.nx * grid.ny);
-  for (let j = 0; j < grid.ny; j++) {
-    const y = grid.ySouth_m + (j + 0.5) * grid.spacing_m;
-    for (let i = 0; i < grid.nx; i++) {
-      if (insideRing(ring_m, grid.xWest_m + (i + 0.5) * grid.spacing_m, y)) mask[i + grid.nx * j] = 1;
-    }
-  }
-  return mask;
+  return siteColumns(grid, ring_m).onSite;
 }
 
 /**

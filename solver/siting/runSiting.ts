@@ -14,7 +14,8 @@ import type { LocalGrid } from '../grid/types.ts';
 import { isInsideGrid } from '../grid/localGrid.ts';
 import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { partOfProgress } from './adjointSolve.ts';
-import { columnsInsideRing, insideRing, latticeInsideRing, lowestColumn } from './candidates.ts';
+import { isInsideRing } from '../grid/siteBoundary.ts';
+import { columnsInsideRing, latticeInsideRing, lowestColumn } from './candidates.ts';
 import { chooseStandard, screenPc, type ScreeningVerdict } from './screening.ts';
 import { gaussianSitingMap, gridSitingMap, SITING_LIMITS, type PcAt, type ReceptorCombination, type SitingMap, type WeightedWeather } from './sitingMap.ts';
 
@@ -247,7 +248,7 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
     within: siteMask === null ? 'whole domain' : 'site polygon',
     from: 'map',
   };
-  const bestCandidate = candidates.find((candidate) => siteRing_m === null || candidate.origin === 'sitePolygon' || insideRing(siteRing_m, candidate.x_m, candidate.y_m));
+  const bestCandidate = candidates.find((candidate) => siteRing_m === null || candidate.origin === 'sitePolygon' || isInsideRing(siteRing_m, candidate.x_m, candidate.y_m));
   if (bestCandidate !== undefined && bestCandidate.combined_ug_m3 < best.combined_ug_m3) {
     best = { ...best, x_m: bestCandidate.x_m, y_m: bestCandidate.y_m, lon: bestCandidate.lon, lat: bestCandidate.lat, combined_ug_m3: bestCandidate.combined_ug_m3, receptorPc_ug_m3: [...bestCandidate.receptorPc_ug_m3], from: `candidate ${bestCandidate.id}` };
   }

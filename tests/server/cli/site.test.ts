@@ -106,7 +106,7 @@ describe('plumeplan site', () => {
       [['--candidates', notPoints], /--candidates: feature 1 is not a Point/],
       [['--candidates', path.join(scratch, 'missing.json')], /--candidates: cannot read .*missing\.json \(ENOENT\)/],
       [['--stack', 'chimney'], /invalid input: stack "chimney" is not a point source of the scenario; allowed: "boiler-stack"/],
-      [['--site-polygon', file('tiny.geojson', { type: 'Polygon', coordinates: [[[-2.2841, 54.0612], [-2.28409, 54.0612], [-2.28409, 54.06121], [-2.2841, 54.0612]]] })], /site polygon: no point of a 200 m lattice falls inside it; use a smaller spacing/],
+      [['--site-polygon', file('tiny.geojson', { type: 'Polygon', coordinates: [[[-2.28408, 54.06122], [-2.28407, 54.06122], [-2.28407, 54.06123], [-2.28408, 54.06122]]] })], /site polygon: no point of a 200 m lattice falls inside it; use a smaller spacing/],
     ];
     for (const [extra, message] of cases) {
       const run = capture();

@@ -17,7 +17,8 @@ import type { Scenario } from '../../../scenarios/format/types.ts';
 import { createLocalProjection } from '../../../solver/grid/projection.ts';
 import { ScenarioInputError } from '../../../solver/drivers/runScenario.ts';
 import { runSiting } from '../../../solver/siting/runSiting.ts';
-import { latticeInsideRing, insideRing, lowestColumn } from '../../../solver/siting/candidates.ts';
+import { latticeInsideRing, lowestColumn } from '../../../solver/siting/candidates.ts';
+import { isInsideRing } from '../../../solver/grid/siteBoundary.ts';
 import { screenPc } from '../../../solver/siting/screening.ts';
 
 const site = { lat: 54.2, lon: -2.1, landUse: 'rural' as const };
@@ -139,8 +140,8 @@ describe('candidate positions', () => {
     expect(latticeInsideRing(square, 50)).toHaveLength(25);
     expect(latticeInsideRing(square, 100)).toHaveLength(9);
     expect(() => latticeInsideRing([[1, 1], [2, 1], [2, 2], [1, 1]], 100)).toThrow(/no point of a 100 m lattice/);
-    expect(insideRing(square, 0, 0)).toBe(true);
-    expect(insideRing(square, 0, 150)).toBe(false);
+    expect(isInsideRing(square, 0, 0)).toBe(true);
+    expect(isInsideRing(square, 0, 150)).toBe(false);
   });
 
   it('finds the lowest masked column, ties to the first', () => {
