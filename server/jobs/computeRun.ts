@@ -2,6 +2,7 @@
  * What a run computes, wherever it runs (a worker thread today): the scenario is checked again, run
  * with runScenario, and turned into the result files the server stores: summary.json, receptors.csv,
  * footprint.geojson, the wind rose when there is one, and the ground field as binary for the map.
+ * Compare, sweep, stack-height and site runs are computed by ./computeAnalysis.ts.
  */
 import { parseScenario } from '../../scenarios/format/schema.ts';
 import type { SolverMode } from '../../scenarios/format/types.ts';
@@ -14,6 +15,7 @@ import type { ResultFileContent } from '../storage/resultFiles.ts';
 import type { RunError } from '../storage/runStore.ts';
 import { encodeGroundField, GROUND_FIELD_CONTENT_TYPE, GROUND_FIELD_FILE } from '../writers/groundField.ts';
 import { buildResultFiles, FOOTPRINT_FILE, RECEPTORS_FILE, SUMMARY_FILE, WIND_ROSE_FILE } from '../writers/writeResultFolder.ts';
+import { computeAnalysis, inputErrorDetail, RunInputError } from './computeAnalysis.ts';
 import type { RunJob } from './runExecutor.ts';
 
 /** Content types of the result files. */
@@ -25,13 +27,7 @@ export const RESULT_CONTENT_TYPES: Record<string, string> = {
   [GROUND_FIELD_FILE]: GROUND_FIELD_CONTENT_TYPE,
 };
 
-/** A run that cannot go ahead as asked, in the API's error shape. */
-export class RunInputError extends Error {
-  override name = 'RunInputError';
-  constructor(readonly detail: RunError) {
-    super(detail.error);
-  }
-}
+export { RunInputError };
 
 /**
  * Compute one run.
@@ -45,7 +41,7 @@ export async function computeRun(job: RunJob, control: RunControl = {}): Promise
     case 'scenario':
       return computeScenarioRun(job, control);
     default:
-      throw new RunInputError({ error: `kind: ${JSON.stringify(job.kind)} is not a kind of run`, field: 'kind', value: job.kind });
+      return computeAnalysis(job, control);
   }
 }
 
@@ -82,10 +78,4 @@ async function computeScenarioRun(job: RunJob, control: RunControl): Promise<Res
   }));
   files.push({ name: GROUND_FIELD_FILE, contentType: GROUND_FIELD_CONTENT_TYPE, content: encodeGroundField(scenario, result, GROUND_LEVEL_HEIGHT_m) });
   return files;
-}
-
-/** The solver's input messages start with the field path ("sources[1]: ..."): name it. */
-function inputErrorDetail(message: string): RunError {
-  const match = /^([A-Za-z_][\w]*(?:\[\d+\]|\.[A-Za-z_][\w]*)*):/.exec(message);
-  return { error: message, field: match === null ? 'scenario' : `scenario.${match[1]}` };
 }
