@@ -6,7 +6,7 @@
 import { z } from 'zod';
 import { ID_PATTERN } from '../storage/ids.ts';
 import { RUN_STATUSES } from '../storage/runStore.ts';
-import { RUN_KINDS } from '../jobs/runExecutor.ts';
+import { PACK_CHOICES, RUN_KINDS } from '../jobs/runExecutor.ts';
 import { SWEEP_PARAMETERS, type SweepParameter } from '../../solver/assessment/sweep.ts';
 import { MAX_SWEEP_VALUES } from '../analyses/sweep.ts';
 import { STACK_HEIGHT_DEFAULTS } from '../analyses/stackHeight.ts';
@@ -40,6 +40,21 @@ export const runRequestSchema = z.strictObject({
   scenarioId: idSchema,
   revision: revisionNumber.optional().describe('default: the latest'),
   mode: modeField,
+  pack: z
+    .enum(PACK_CHOICES)
+    .optional()
+    .describe(
+      'the consultation pack plumeplan run writes, made in the run: "full" (ground.tif, map.svg, map.png, report.html, report.pdf, receptors-with-caution.csv, plumeplan-run.zip), "quick" (all but map.png and report.pdf, the slow ones) or "none" (default)',
+    ),
+  crs: z
+    .union([z.string().min(1).max(40), z.number().int().positive()], { error: 'an EPSG code, e.g. "EPSG:27700"' })
+    .optional()
+    .describe("with a pack: CRS of ground.tif and the map figure, an EPSG code plumeplan knows (the CLI's --crs); default the site's WGS 84 UTM zone"),
+  contextLayers: z
+    .array(z.strictObject({ name: z.string().min(1).max(100), features: z.unknown().describe('a GeoJSON FeatureCollection or a list of Features, WGS 84 lon/lat') }))
+    .max(20)
+    .optional()
+    .describe("with a pack: the user's own layers (roads, houses...) drawn thinly on the map figure"),
 });
 
 /** One side of a comparison: a stored scenario (and revision), or a finished run of a scenario. */

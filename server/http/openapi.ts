@@ -176,7 +176,7 @@ export function openApiDocument(): JsonObject {
         },
       },
       '/api/runs/{id}/results/{name}': {
-        parameters: [idParameter(), { name: 'name', in: 'path', required: true, schema: { type: 'string', pattern: '^[a-z0-9][a-z0-9._-]{0,63}$', examples: ['summary.json', 'receptors.csv', 'footprint.geojson', 'windrose.svg', 'ground-field.bin', 'comparison.json', 'sweep.csv', 'stack-height.json', 'siting.json', 'siting-map.tif'] } }],
+        parameters: [idParameter(), { name: 'name', in: 'path', required: true, schema: { type: 'string', pattern: '^[a-z0-9][a-z0-9._-]{0,63}$', examples: ['summary.json', 'receptors.csv', 'footprint.geojson', 'windrose.svg', 'ground-field.bin', 'ground.tif', 'map.png', 'report.pdf', 'plumeplan-run.zip', 'comparison.json', 'sweep.csv', 'stack-height.json', 'siting.json', 'siting-map.tif'] } }],
         get: {
           summary: "One result file of a finished run, as listed in the run's results (names by kind, and ground-field.bin: see docs/http-api.md)",
           responses: {
@@ -189,6 +189,10 @@ export function openApiDocument(): JsonObject {
                 'image/svg+xml': { schema: { type: 'string' } },
                 'application/vnd.plumeplan.groundfield': { schema: { type: 'string', contentEncoding: 'binary' } },
                 'image/tiff': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'image/png': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'application/pdf': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'application/zip': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'text/html': { schema: { type: 'string' } },
               },
             },
             '404': errorResponse('no such run or file'),

@@ -3,6 +3,7 @@
  * beyond the request's shape (zod, in ../http/apiSchemas.ts): the options against the stored scenario,
  * with the same functions the run itself uses, so a run that cannot succeed is refused at once (422)
  * naming the field, instead of failing later in a thread. Returns the options as the job takes them.
+ * (A scenario run's own options are its consultation pack's: `admitScenarioPack`.)
  */
 import type { Scenario } from '../../scenarios/format/types.ts';
 import { applySweepValue, SWEEP_PARAMETERS, sweptSourceId, withFixedDomain, type SweepParameter } from '../../solver/assessment/sweep.ts';
@@ -11,7 +12,9 @@ import { MAX_SWEEP_VALUES } from '../analyses/sweep.ts';
 import { parseCandidates, parseSitePolygon, SitingInputError } from '../analyses/siting.ts';
 import { resolveStackHeightTarget, STACK_HEIGHT_DEFAULTS, TargetError, type StackHeightRequest } from '../analyses/stackHeight.ts';
 import { RESULT_NAME_PATTERN } from '../storage/resultFiles.ts';
+import { allowedCrsText, resolveCrs } from '../writers/crs.ts';
 import { RunRefusedError } from './admission.ts';
+import type { PackChoice } from './runExecutor.ts';
 
 function refuse(field: string, value: unknown, allowed: string, error: string, status = 422): never {
   throw new RunRefusedError(status, { error, field, value, allowed });
@@ -160,4 +163,54 @@ export function admitSite(scenario: Scenario, input: SiteOptionsInput): Record<s
   delete options.candidates;
   delete options.sitePolygon;
   return { ...options, ...(candidates !== undefined ? { candidates } : {}), ...(sitePolygon !== undefined ? { sitePolygon } : {}) };
+}
+
+export interface ScenarioPackInput {
+  pack?: PackChoice;
+  crs?: string | number;
+  contextLayers?: { name: string; features: unknown }[];
+}
+
+/**
+ * A scenario run's pack options: which pack, the CRS of ground.tif and the map (checked with the
+ * writers' own resolveCrs), the context layers (GeoJSON Features with geometry). Without a pack the
+ * options are none at all, so such a run is identical to one from before packs existed.
+ * @throws RunRefusedError (400) naming crs, contextLayers[i]...
+ */
+export function admitScenarioPack(_scenario: Scenario, input: ScenarioPackInput): Record<string, unknown> {
+  const pack = input.pack ?? 'none';
+  if (pack === 'none') {
+    if (input.crs !== undefined) refuse('crs', input.crs, 'crs only with pack "quick" or "full"', 'crs: the CRS of ground.tif and the map figure needs pack "quick" or "full"', 400);
+    if (input.contextLayers !== undefined) refuse('contextLayers', undefined, 'contextLayers only with pack "quick" or "full"', 'contextLayers: the map figure\'s layers need pack "quick" or "full"', 400);
+    return {};
+  }
+  let crs: string | undefined;
+  if (input.crs !== undefined) {
+    try {
+      crs = `EPSG:${resolveCrs(input.crs).epsg}`;
+    } catch (error) {
+      refuse('crs', input.crs, allowedCrsText(), reason(error), 400);
+    }
+  }
+  input.contextLayers?.forEach((layer, index) => {
+    const features = (layer.features as { type?: unknown; features?: unknown })?.type === 'FeatureCollection' ? (layer.features as { features: unknown }).features : layer.features;
+    if (!Array.isArray(features)) {
+      refuse(`contextLayers[${index}].features`, undefined, 'a GeoJSON FeatureCollection or a list of Features', `contextLayers[${index}].features: not a GeoJSON FeatureCollection or a list of Features`, 400);
+    }
+    features.forEach((feature: unknown, n: number) => {
+      const { type, geometry } = (feature ?? {}) as { type?: unknown; geometry?: { type?: unknown; coordinates?: unknown } | null };
+      const geometryTypes = ['Point', 'MultiPoint', 'LineString', 'MultiLineString', 'Polygon', 'MultiPolygon'];
+      if (type !== 'Feature' || geometry === null || typeof geometry !== 'object' || !geometryTypes.includes(String(geometry.type)) || !Array.isArray(geometry.coordinates)) {
+        refuse(`contextLayers[${index}].features[${n}]`, undefined, `a GeoJSON Feature with a geometry (${geometryTypes.join(', ')}) in WGS 84 lon/lat`, `contextLayers[${index}].features[${n}]: not a GeoJSON Feature with a geometry`, 400);
+      }
+    });
+  });
+  return { pack, ...(crs !== undefined ? { crs } : {}), ...(input.contextLayers !== undefined ? { contextLayers: input.contextLayers } : {}) };
+}
+
+/** The options of runs with larger packs (same CRS and layers), whose files include these options' files. */
+export function largerPacks(options: Record<string, unknown>): Record<string, unknown>[] {
+  const order: PackChoice[] = ['none', 'quick', 'full'];
+  const pack = (options.pack as PackChoice | undefined) ?? 'none';
+  return order.slice(order.indexOf(pack) + 1).map((larger) => ({ ...options, pack: larger }));
 }

@@ -13,6 +13,10 @@ import type { RunError } from '../storage/runStore.ts';
 export const RUN_KINDS = ['scenario', 'compare', 'sweep', 'stack-height', 'site'] as const;
 export type RunKind = (typeof RUN_KINDS)[number];
 
+/** Which consultation pack a scenario run makes: none, all but the rendered files (map.png, report.pdf), or all. */
+export const PACK_CHOICES = ['none', 'quick', 'full'] as const;
+export type PackChoice = (typeof PACK_CHOICES)[number];
+
 /** One run to compute. Everything in it is plain JSON, so it can travel to a thread or a machine. */
 export interface RunJob {
   id: string;

@@ -12,7 +12,7 @@ import { canonicalJson, sha256Hex } from '../storage/ids.ts';
 import type { ResultFileStore } from '../storage/resultFiles.ts';
 import { FINAL_STATUSES, type RunError, type RunRecord, type RunStatus, type RunStore } from '../storage/runStore.ts';
 import { NotFoundError, type RevisionWithBody, type ScenarioRecord, type ScenarioStore } from '../storage/scenarioStore.ts';
-import { admitSite, admitStackHeight, admitSweep, type SiteOptionsInput, type StackHeightOptionsInput, type SweepOptionsInput } from './analysisAdmission.ts';
+import { admitScenarioPack, admitSite, admitStackHeight, admitSweep, largerPacks, type ScenarioPackInput, type SiteOptionsInput, type StackHeightOptionsInput, type SweepOptionsInput } from './analysisAdmission.ts';
 import { planRun, RunRefusedError } from './admission.ts';
 import type { RunEvent, RunExecutor, RunKind } from './runExecutor.ts';
 
@@ -120,6 +120,7 @@ export class RunManager {
     let second: { revision: RevisionWithBody; mode: SolverMode } | undefined;
     switch (request.kind) {
       case 'scenario':
+        options = { mode: plan.mode, ...admitScenarioPack(plan.scenario, (request.options ?? {}) as ScenarioPackInput) };
         break;
       case 'compare': {
         const side = request.second as ResolvedSide;
@@ -152,11 +153,19 @@ export class RunManager {
     }
     const scenario = first.scenario;
     const revision = first.revision;
-    const dedupeKey = sha256Hex(
-      canonicalJson({ scenarioId: scenario.id, checksum: revision.checksum, kind: request.kind, options, ...(second !== undefined ? { secondChecksum: second.revision.checksum } : {}) }),
-    );
-
-    const earlier = runs.findReusable(dedupeKey);
+    const keyOf = (keyOptions: Record<string, unknown>): string =>
+      sha256Hex(
+        canonicalJson({ scenarioId: scenario.id, checksum: revision.checksum, kind: request.kind, options: keyOptions, ...(second !== undefined ? { secondChecksum: second.revision.checksum } : {}) }),
+      );
+    const dedupeKey = keyOf(options);
+    // A run that made a larger pack (same CRS and layers) answers a request for a smaller one too, and
+    // any run of the same mode answers a request without a pack (its core files are the same).
+    const larger = request.kind === 'scenario' ? largerPacks(options).map(keyOf) : [];
+    const earlier =
+      [dedupeKey, ...larger].map((key) => runs.findReusable(key)).find((run) => run !== undefined) ??
+      (request.kind === 'scenario' && options.pack === undefined
+        ? runs.findReusableOf(scenario.id, revision.checksum, 'scenario').find((run) => run.options.mode === options.mode)
+        : undefined);
     if (earlier !== undefined) {
       logger.info({ run: earlier.id, status: earlier.status, reused: true }, 'identical submission served from an earlier run');
       return { run: earlier, reused: true };

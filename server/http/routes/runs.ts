@@ -123,7 +123,8 @@ export function runRoutes(deps: RunRouteDependencies): Router {
       'Content-Length': String(file.bytes),
       ETag: `"${file.sha256}"`,
       'Cache-Control': 'private, max-age=31536000, immutable',
-      'Content-Disposition': `inline; filename="${name}"`,
+      // A download when opened as a page; a fetch, an <img> or the map's reader ignore it.
+      'Content-Disposition': `attachment; filename="${name}"`,
     });
     if (request.fresh) {
       response.status(304).end();
@@ -172,7 +173,8 @@ export function submitRequestOf(body: unknown, manager: RunManager, client: stri
   switch (kind as RunKind) {
     case 'scenario': {
       const parsed = parseRequest(runRequestSchema, body);
-      return { kind: 'scenario', scenarioId: parsed.scenarioId, revision: parsed.revision, mode: parsed.mode, client };
+      const { kind: _kind, scenarioId, revision, mode, ...options } = parsed;
+      return { kind: 'scenario', scenarioId, revision, mode, options, client };
     }
     case 'compare': {
       const parsed = parseRequest(compareRequestSchema, body);
