@@ -187,6 +187,11 @@ export const validationSchema = z.object({
     .object({ nx: z.number(), ny: z.number(), nz: z.number(), spacing_m: z.number(), cells: z.number(), estimatedMemory_bytes: z.number(), domainDerived: z.boolean() })
     .nullable()
     .describe('the grid a run would use (null when not valid)'),
+  warnings: z
+    .array(z.object({ field: z.string(), value: z.unknown().optional(), message: z.string() }))
+    .describe(
+      "plausibility warnings, not errors (the scenario can still run): the ones plumeplan validate prints and a run records in summary.json's inputWarnings; empty when the scenario has issues",
+    ),
 });
 
 export const resultFileSchema = z.object({
