@@ -59,6 +59,7 @@ export function openApiDocument(): JsonObject {
       description: `Scenarios kept with their revisions, runs computed in the background, and their results. ${SCREENING_CAUTION}`,
     },
     servers: [{ url: '/' }],
+    security: [{}, { token: [] }],
     components: {
       schemas: {
         Scenario: schemaOf(scenarioSchema, 'input'),
@@ -154,7 +155,16 @@ export function openApiDocument(): JsonObject {
         get: { summary: 'A run: status, progress, error, result files', responses: { '200': { description: 'the run', content: json(ref('Run')) }, '404': errorResponse('no such run') } },
       },
       '/api/runs/{id}/events': {
-        parameters: [idParameter()],
+        parameters: [
+          idParameter(),
+          {
+            name: 'access_token',
+            in: 'query',
+            required: false,
+            schema: { type: 'string' },
+            description: "the server's token, for a browser's EventSource (which cannot send headers); this route only",
+          },
+        ],
         get: {
           summary: 'Progress as server-sent events: "status" and "progress" events, data {id, status, progress, message, error}; ends after the final status',
           responses: { '200': { description: 'an event stream', content: { 'text/event-stream': { schema: { type: 'string' } } } }, '404': errorResponse('no such run') },

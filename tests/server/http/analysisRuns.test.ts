@@ -252,11 +252,23 @@ describe('analysis runs', () => {
     await request(server.app).get(`/api/runs/${id}/results/sweep.csv`).expect(409);
   });
 
-  it('lists the new kinds in the OpenAPI document', async () => {
+  it('lists the new kinds, the pack options, the warnings and the progress stream token in the OpenAPI document', async () => {
     const document = (await request(server.app).get('/api/openapi.json').expect(200)).body;
     const schemas = document.components.schemas;
     expect(Object.keys(schemas)).toEqual(expect.arrayContaining(['CompareRequest', 'SweepRequest', 'StackHeightRequest', 'SiteRequest']));
     expect(schemas.SweepRequest.properties.parameter.enum).toContain('stackHeight_m');
     expect(schemas.Run.properties.kind.enum).toEqual(['scenario', 'compare', 'sweep', 'stack-height', 'site']);
+    expect(schemas.RunRequest.oneOf.map((entry: { $ref: string }) => entry.$ref.split('/').at(-1))).toEqual([
+      'ScenarioRunRequest',
+      'CompareRequest',
+      'SweepRequest',
+      'StackHeightRequest',
+      'SiteRequest',
+    ]);
+    expect(Object.keys(schemas.ScenarioRunRequest.properties)).toEqual(expect.arrayContaining(['pack', 'crs', 'contextLayers']));
+    expect(Object.keys(schemas.Validation.properties)).toContain('warnings');
+    const events = document.paths['/api/runs/{id}/events'].parameters.map((parameter: { name: string }) => parameter.name);
+    expect(events).toContain('access_token');
+    expect(document.paths['/api/runs/{id}/assessment'].get).toBeDefined();
   });
 });
