@@ -9,7 +9,7 @@
  */
 import { parseScenario } from '../../scenarios/format/schema.ts';
 import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
-import type { SweepParameter } from '../../solver/assessment/sweep.ts';
+import { isLinearSweep, SWEEP_PARAMETERS, sweptSourceId, type SweepParameter } from '../../solver/assessment/sweep.ts';
 import { runScenario, ScenarioInputError } from '../../solver/drivers/runScenario.ts';
 import { UnavailableError } from '../../solver/drivers/solveSteady.ts';
 import type { RunControl } from '../../solver/drivers/types.ts';
@@ -92,9 +92,38 @@ export function inputErrorDetail(message: string): RunError {
   return { error: message, field: match === null ? 'scenario' : `scenario.${match[1]}` };
 }
 
-/** Members one after another on this thread, each in the job's mode. */
-function inThreadMembers(mode: SolverMode): MemberLanes {
-  return { runMember: (member, _lane, control) => runScenario(member, { mode, control: { signal: control.signal } }), lanes: 1 };
+/**
+ * Members one after another on this thread, each in the job's mode, reporting progress within each
+ * member too (a grid member takes a while): as a share of `expectedMembers` when the count is known,
+ * else at the fraction the search last reported, with the member's own message.
+ * @returns the runner and the control to hand the sweep or search (it tracks their fraction)
+ */
+function inThreadMembers(mode: SolverMode, control: RunControl, expectedMembers?: number): { runner: MemberLanes; control: RunControl } {
+  let started = 0;
+  let reported = 0;
+  const outer: RunControl = {
+    signal: control.signal,
+    onProgress: (fraction, message) => {
+      reported = fraction;
+      control.onProgress?.(fraction, message);
+    },
+  };
+  const runner: MemberLanes = {
+    lanes: 1,
+    runMember: (member, _lane, memberControl) => {
+      const index = started++;
+      const label = expectedMembers === undefined ? `run ${index + 1}` : `member ${index + 1} of ${expectedMembers}`;
+      return runScenario(member, {
+        mode,
+        control: {
+          signal: memberControl.signal,
+          onProgress: (fraction, message) =>
+            control.onProgress?.(expectedMembers === undefined ? reported : Math.min(0.99, Math.max(reported, (index + fraction) / expectedMembers)), `${label}: ${message}`),
+        },
+      });
+    },
+  };
+  return { runner, control: outer };
 }
 
 /** Compute a compare, sweep, stack-height or site run. */
@@ -156,7 +185,10 @@ async function computeSweepRun(job: RunJob, control: RunControl): Promise<Result
   const scenario = storedScenario(job.scenario);
   const mode = job.options.mode as SolverMode;
   const request = { parameter: job.options.parameter as SweepParameter, values: job.options.values as number[], sourceId: job.options.sourceId as string | undefined };
-  const sweep = await computeSweep(scenario, request, inThreadMembers(mode), control);
+  const swept = SWEEP_PARAMETERS[request.parameter]?.perSource ? sweptSourceId(scenario, request.parameter, request.sourceId) : null;
+  const members = isLinearSweep(scenario, request.parameter, swept) ? 1 : request.values.length;
+  const lanes = inThreadMembers(mode, control, members);
+  const sweep = await computeSweep(scenario, request, lanes.runner, lanes.control);
   return asResultFiles(buildSweepFiles(sweep, scenario.name));
 }
 
@@ -165,7 +197,8 @@ async function computeStackHeightRun(job: RunJob, control: RunControl): Promise<
   const mode = job.options.mode as SolverMode;
   const request = job.options as unknown as StackHeightRequest;
   const target = resolveStackHeightTarget(scenario, request);
-  const result = await computeStackHeight(scenario, request, target.target_ug_m3, inThreadMembers(mode), control);
+  const lanes = inThreadMembers(mode, control);
+  const result = await computeStackHeight(scenario, request, target.target_ug_m3, lanes.runner, lanes.control);
   return asResultFiles(buildStackHeightFiles(result, scenario.name, target.basis));
 }
 

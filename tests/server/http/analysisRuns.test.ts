@@ -241,11 +241,34 @@ describe('analysis runs', () => {
     expect(stale.body.field).toBe('a.runId');
   });
 
-  it('cancels a running sweep: cancelled, no results, the executor free again', async () => {
+  it('cancels a running sweep: progress within a member streams first; then cancelled, no results, the executor free again', async () => {
     const big = smallScenario({ name: 'Finer grid sweep to cancel (invented)', domain: { halfWidth_m: 2500, spacing_m: 25, height_m: 1000, layers: 30 } });
     const created = await request(server.app).post('/api/scenarios').send({ scenario: big }).expect(201);
     const id = await submit({ kind: 'sweep', scenarioId: created.body.id, mode: 'grid', parameter: 'stackHeight_m', values: [20, 30, 40, 50] });
-    await waitFor(async () => ((await request(server.app).get(`/api/runs/${id}`)).body.status === 'running' ? true : undefined));
+    // the progress stream: read until an event names the first member's own progress
+    const heard = await new Promise<{ status: string; progress: number; message: string }>((resolve, reject) => {
+      const stream = request(server.app)
+        .get(`/api/runs/${id}/events`)
+        .buffer(false)
+        .parse((response, callback) => {
+          let text = '';
+          response.setEncoding('utf8');
+          response.on('data', (chunk: string) => {
+            text += chunk;
+            const found = [...text.matchAll(/^data: (.*)$/gm)].map((match) => JSON.parse(match[1])).find((data) => /^member 1 of 4: /.test(data.message));
+            if (found !== undefined) {
+              resolve(found);
+              (response as unknown as { destroy(): void }).destroy();
+            }
+          });
+          response.on('end', () => callback(null, text));
+          response.on('error', () => callback(null, text));
+        });
+      stream.then(() => reject(new Error('the stream ended before a member reported progress')), () => undefined);
+    });
+    expect(heard.status).toBe('running');
+    expect(heard.progress).toBeGreaterThanOrEqual(0);
+    expect(heard.progress).toBeLessThan(0.25);
     const cancelled = await request(server.app).post(`/api/runs/${id}/cancel`).expect(200);
     expect(cancelled.body).toMatchObject({ status: 'cancelled', results: [] });
     expect(server.services.manager.activity().running).toBe(0);
