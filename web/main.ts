@@ -137,7 +137,7 @@ async function start(): Promise<void> {
         height_m: field.height_m,
         isopleths_ug_m3: levels,
       });
-      results.setAreas(field, levels);
+      results.setAreas(field, levels, placesInFrame());
     }
     readout.setProbe({
       valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null),
@@ -145,6 +145,24 @@ async function start(): Promise<void> {
       standard: chosenStandard(),
     });
     window.dispatchEvent(new CustomEvent(FIELD_DRAWN_EVENT, { detail: { origin: field.origin } }));
+  }
+
+  /** Sources (stacks; areas by their first corner) and receptors in local metres, for the footprint areas. */
+  function placesInFrame(): { sources: { id: string; x_m: number; y_m: number }[]; receptors: { id: string; name: string; x_m: number; y_m: number }[] } {
+    const view = doc.view as { sources?: { id?: string; lat?: number; lon?: number; polygon?: [number, number][] }[]; receptors?: { id?: string; name?: string; lat?: number; lon?: number }[] };
+    const local = (lon: number, lat: number) => frame.projection.toLocal(lon, lat);
+    const sources = (view.sources ?? []).flatMap((s) => {
+      const at = typeof s.lat === 'number' && typeof s.lon === 'number' ? [s.lon, s.lat] : Array.isArray(s.polygon) && s.polygon.length > 0 ? s.polygon[0] : null;
+      if (at === null || typeof s.id !== 'string') return [];
+      const [x_m, y_m] = local(at[0], at[1]);
+      return [{ id: s.id, x_m, y_m }];
+    });
+    const receptors = (view.receptors ?? []).flatMap((r) => {
+      if (typeof r.lat !== 'number' || typeof r.lon !== 'number' || typeof r.id !== 'string') return [];
+      const [x_m, y_m] = local(r.lon, r.lat);
+      return [{ id: r.id, name: r.name ?? r.id, x_m, y_m }];
+    });
+    return { sources, receptors };
   }
 
   function chosenStandard(): { name: string; limit_ug_m3: number } | null {
@@ -162,7 +180,7 @@ async function start(): Promise<void> {
       `Gaussian preview of ${r.weatherLabel}; peak ${r.peak.value_ug_m3.toPrecision(3)} µg/m³; ${r.grid.nx} × ${r.grid.ny} cells of ${r.grid.spacing_m} m${r.coarsened ? ' (coarsened for speed)' : ''}; ${Math.round(answer.roundTrip_ms)} ms`,
       false,
     );
-    results.setPreviewReceptors(r.receptors_ug_m3);
+    results.setPreviewReceptors(r.receptors_ug_m3, r.peak);
     // The bench reads these (tests/bench/mapPage.ts): request-to-answer and the worker's own time.
     (window as unknown as { plumeplanPreviewTimes?: { roundTrip_ms: number; compute_ms: number }[] }).plumeplanPreviewTimes?.push({ roundTrip_ms: answer.roundTrip_ms, compute_ms: r.compute_ms });
     if (results.showsPreview) {
