@@ -4,7 +4,7 @@
  * group says in one line what it changes.
  */
 import { parseWeatherCsv } from '../../scenarios/format/weatherCsv.ts';
-import { escapeHtml } from '../map/mapControls.ts';
+import { escapeHtml } from '../map/escapeHtml.ts';
 import type { RawScenario, ScenarioDocument } from '../state/scenarioDocument.ts';
 import { choiceField, fieldGroup, numberField, showIssues, textField } from './formKit.ts';
 import type { LibraryPollutant } from '../../scenarios/format/types.ts';
@@ -340,17 +340,17 @@ export class ConditionsPanel {
     input.addEventListener('change', async () => {
       const file = input.files?.[0];
       if (!file) return;
-      const text = await file.text();
-      const outcome = parseWeatherCsv(text, file.name);
+      const read = readWeatherUpload(await file.text(), file.name);
       const errorSlot = wrapper.querySelector('.error') as HTMLElement;
-      if (!outcome.ok) {
-        errorSlot.textContent = outcome.issues.slice(0, 5).map((i) => `${i.path}: ${i.message}`).join('\n') + (outcome.issues.length > 5 ? `\n… and ${outcome.issues.length - 5} more` : '');
+      if (!read.ok) {
+        errorSlot.textContent = read.errorText;
         return;
       }
       errorSlot.textContent = '';
-      this.csvSummary = `<p>Read ${outcome.hours.length} hours from <b>${escapeHtml(file.name)}</b>.</p>` + hoursSummary(outcome.hours as unknown as Obj[]);
+      this.csvSummary = read.summaryHtml;
+      const hoursRead = read.hours;
       this.set('weather hourly series', (draft) => {
-        draft.weather = { kind: 'hourly', hours: outcome.hours };
+        draft.weather = { kind: 'hourly', hours: hoursRead };
       });
       this.render();
     });
@@ -514,7 +514,22 @@ export class ConditionsPanel {
   }
 }
 
-function hoursSummary(hours: Obj[]): string {
+/**
+ * An uploaded hourly CSV, read: the hours and the preview of what was read, or the first problems
+ * (each naming the line and column) for the error slot beside the upload.
+ */
+export function readWeatherUpload(text: string, fileName: string): { ok: true; hours: Obj[]; summaryHtml: string } | { ok: false; errorText: string } {
+  const outcome = parseWeatherCsv(text, fileName);
+  if (!outcome.ok) {
+    const shown = outcome.issues.slice(0, 5).map((i) => `${i.path}: ${i.message}`);
+    return { ok: false, errorText: shown.join('\n') + (outcome.issues.length > 5 ? `\n… and ${outcome.issues.length - 5} more` : '') };
+  }
+  const hours = outcome.hours as unknown as Obj[];
+  return { ok: true, hours, summaryHtml: `<p>Read ${hours.length} hours from <b>${escapeHtml(fileName)}</b>.</p>` + hoursSummary(hours) };
+}
+
+/** The preview of hours read: their number, first and last time, and the first four rows. */
+export function hoursSummary(hours: Obj[]): string {
   if (hours.length === 0) return '<p class="muted">No hours yet.</p>';
   const rows = hours.slice(0, 4);
   return (
