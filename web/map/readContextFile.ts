@@ -3,9 +3,20 @@
  * the page): GeoJSON as it is, KML through @tmcw/togeojson (which needs the browser's DOMParser, or one
  * passed in), zipped shapefiles through shpjs.
  */
+/// <reference path="../types/shpjs.d.ts" />
 import { kml } from '@tmcw/togeojson';
 import shp from 'shpjs';
 import type { FeatureCollection } from 'geojson';
+
+/** An XML parser as the browser's DOMParser is one (typed by shape, so the module compiles without the DOM library). */
+export interface XmlParser {
+  parseFromString(text: string, type: 'text/xml'): unknown;
+}
+
+function browserXmlParser(): XmlParser | null {
+  const Parser = (globalThis as { DOMParser?: new () => XmlParser }).DOMParser;
+  return Parser === undefined ? null : new Parser();
+}
 
 /** What reading a file needs: its name, its bytes and its text (a browser File has all three). */
 export interface ContextFileLike {
@@ -19,7 +30,7 @@ export interface ContextFileLike {
  *
  * @throws Error naming the file and what was wrong with it
  */
-export async function readContextFile(file: ContextFileLike, xmlParser: { parseFromString(text: string, type: 'text/xml'): Document } | null = typeof DOMParser === 'undefined' ? null : new DOMParser()): Promise<FeatureCollection> {
+export async function readContextFile(file: ContextFileLike, xmlParser: XmlParser | null = browserXmlParser()): Promise<FeatureCollection> {
   const name = file.name.toLowerCase();
   if (name.endsWith('.zip')) {
     let result: Awaited<ReturnType<typeof shp>>;
@@ -34,8 +45,8 @@ export async function readContextFile(file: ContextFileLike, xmlParser: { parseF
   const text = await file.text();
   if (name.endsWith('.kml')) {
     if (xmlParser === null) throw new Error(`${file.name}: KML needs an XML parser, which this environment lacks`);
-    const documentXml = xmlParser.parseFromString(text, 'text/xml');
-    if (documentXml.querySelector('parsererror')) throw new Error(`${file.name}: not readable as KML (XML parse error)`);
+    const documentXml = xmlParser.parseFromString(text, 'text/xml') as Parameters<typeof kml>[0];
+    if ((documentXml as unknown as { querySelector(selector: string): unknown }).querySelector('parsererror')) throw new Error(`${file.name}: not readable as KML (XML parse error)`);
     return kml(documentXml) as FeatureCollection;
   }
   let json: unknown;

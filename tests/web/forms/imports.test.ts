@@ -9,7 +9,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { readContextFile } from '../../../web/map/readContextFile.ts';
-import { hoursSummary, readWeatherUpload } from '../../../web/forms/conditionsPanel.ts';
+import { hoursSummary, readWeatherUpload } from '../../../web/forms/weatherUpload.ts';
 
 const FIXTURES = new URL('../fixtures/imports/', import.meta.url);
 
@@ -32,7 +32,7 @@ describe('context layers from files', () => {
     expect(read.features.map((f) => f.properties)).toEqual(source.features.map((f: { properties: unknown }) => f.properties));
     read.features.forEach((feature, n) => {
       expect(feature.geometry.type).toBe('Polygon');
-      const ring = (feature.geometry as { coordinates: Ring[] }).coordinates[0];
+      const ring = (feature.geometry as unknown as { coordinates: Ring[] }).coordinates[0];
       expect(ring[0]).toEqual(ring[ring.length - 1]);
       expect(corners(ring)).toEqual(corners(source.features[n].geometry.coordinates[0]));
     });
