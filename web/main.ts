@@ -11,7 +11,7 @@ import demoScenario from '../scenarios/merrowdene-heat-plant/scenario.json';
 import { parseScenario } from '../scenarios/format/schema.ts';
 import { ColourScale, DifferenceScale } from './colour/colourScale.ts';
 import { defaultColourRange, isoplethLevels } from './colour/legendLevels.ts';
-import { EditLayer, type Tool } from './editing/editLayer.ts';
+import { EditLayer, KEY_STEP_LARGE_m, KEY_STEP_m, type Tool } from './editing/editLayer.ts';
 import { largestDifference } from './field/compare.ts';
 import { valueAt, type GroundField } from './field/groundField.ts';
 import { ConditionsPanel } from './forms/conditionsPanel.ts';
@@ -194,7 +194,19 @@ async function start(): Promise<void> {
   };
 
   // --- editing -----------------------------------------------------------------------------------
-  const editLayer = new EditLayer(map, doc, (scenario) => requestPreview(scenario));
+  const announcer = byId('map-announcer');
+  byId('marker-keys-hint').textContent = `Arrow keys move this symbol ${KEY_STEP_m} m east, west, north or south; with Shift ${KEY_STEP_LARGE_m} m. Delete removes it.`;
+  const editLayer = new EditLayer(
+    map,
+    doc,
+    (scenario) => requestPreview(scenario),
+    () => frame,
+    (text) => {
+      // a fresh text each time, so a repeated move is announced again
+      announcer.textContent = '';
+      window.setTimeout(() => (announcer.textContent = text), 30);
+    },
+  );
   new ObjectPanel(byId('panel-objects'), doc, editLayer);
   new ConditionsPanel(byId('panel-conditions'), doc);
   new LibraryPanel(byId('panel-library'), doc, api, results);
@@ -229,7 +241,7 @@ async function start(): Promise<void> {
   const hint = byId('tool-hint');
   const toolButtons = Array.from(document.querySelectorAll<HTMLButtonElement>('.toolstrip button[data-tool]'));
   const hints: Record<Tool, string> = {
-    select: 'Drag to pan; click a symbol to select it.',
+    select: `Drag to pan; click a symbol to select it. With the keyboard: Tab to a symbol, arrow keys move it ${KEY_STEP_m} m (Shift: ${KEY_STEP_LARGE_m} m).`,
     stack: 'Click on the map to place the stack (Enter places it at the map centre).',
     receptor: 'Click on the map to place the receptor (Enter places it at the map centre).',
     area: 'Click the corners of the area; click the first corner to finish.',
