@@ -47,6 +47,7 @@ export const OUTCOME_WORDS: Readonly<Record<ScreenOutcome, { text: string; css: 
 export function formatPercent(percent: number): string {
   if (!Number.isFinite(percent)) return '–';
   if (percent === 0) return '0 %';
+  if (Math.abs(percent) < 0.01) return '< 0.01 %';
   return `${Number(percent.toPrecision(2))} %`;
 }
 

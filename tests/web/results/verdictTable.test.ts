@@ -66,6 +66,7 @@ describe('the verdict table', () => {
     expect(formatPercent(11.75)).toBe('12 %');
     expect(formatPercent(0.354)).toBe('0.35 %');
     expect(formatPercent(0)).toBe('0 %');
+    expect(formatPercent(6.9e-6)).toBe('< 0.01 %');
   });
 });
 
