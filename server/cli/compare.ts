@@ -6,16 +6,17 @@
 import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
-import { compareRuns, type ComparedRun, type Comparison } from '../../solver/assessment/comparison.ts';
-import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
+import type { Comparison } from '../../solver/assessment/comparison.ts';
+import { buildComparisonFiles, type ComparisonSide } from '../analyses/comparison.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
-import { comparisonJson, differenceFootprint, type DifferenceCollection } from '../writers/comparison.ts';
-import { defaultFootprintLevels } from '../writers/footprint.ts';
-import { formatFootprint, writeResultFolder } from '../writers/writeResultFolder.ts';
+import { comparisonJson, type DifferenceCollection } from '../writers/comparison.ts';
+import { writeResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
 import { checkOutFolder, executeScenario, loadScenarioForCommand, reportFailure, type RunCommandOptions } from './run.ts';
+
+export type { ComparisonSide };
 
 export const COMPARE_USAGE = `usage: plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
 
@@ -96,7 +97,7 @@ export async function compareCommand(argv: string[], io: CommandIO, options: Run
     const resultA = await run(scenarioA, 0.5, 0, 'A');
     const resultB = await run(scenarioB, 0.5, 0.5, 'B');
     progress.update(1, 'comparing');
-    const written = await writeComparisonFolder(args.outDirectory, { path: args.pathA, scenario: scenarioA, result: resultA }, { path: args.pathB, scenario: scenarioB, result: resultB }, args.levels_ug_m3);
+    const written = await writeComparisonFolder(args.outDirectory, { source: args.pathA, scenario: scenarioA, result: resultA }, { source: args.pathB, scenario: scenarioB, result: resultB }, args.levels_ug_m3);
     progress.finish();
     io.stdout.write(describeComparison(written.comparison, written.directory, written.files));
     return 0;
@@ -106,19 +107,11 @@ export async function compareCommand(argv: string[], io: CommandIO, options: Run
   }
 }
 
-/** One side as the command ran it. */
-export interface ComparisonSide {
-  /** the scenario file, shown as the side's label with the scenario's name */
-  path: string;
-  scenario: Scenario;
-  result: ScenarioRunResult;
-}
-
 /**
  * Compare two runs and write the comparison folder (comparison.json, difference.geojson, a/, b/).
  *
  * @param directory the folder (created if missing)
- * @param a the reference side
+ * @param a the reference side (its source: the scenario file)
  * @param b the other side
  * @param levels_ug_m3 levels whose areas are compared; default round numbers across the larger peak
  * @returns the comparison, the folder and the files written
@@ -129,39 +122,12 @@ export async function writeComparisonFolder(
   b: ComparisonSide,
   levels_ug_m3?: number[],
 ): Promise<{ comparison: Comparison; directory: string; files: string[]; difference: DifferenceCollection }> {
-  const levelsChosen = levels_ug_m3 === undefined ? 'default' : 'given';
-  const levels =
-    levels_ug_m3 ?? defaultFootprintLevels(peakOf(a.result) >= peakOf(b.result) ? a.result.footprint_ug_m3 : b.result.footprint_ug_m3);
-  const comparison = compareRuns(side(a), side(b), { levels_ug_m3: levels });
-  const difference = differenceFootprint(comparison);
-  const json = comparisonJson(
-    comparison,
-    levelsChosen === 'given' ? 'given (--levels)' : 'round numbers (1-2-5 series) across the range of the run with the larger peak',
-  );
+  const built = buildComparisonFiles(a, b, levels_ug_m3);
   await mkdir(directory, { recursive: true });
-  await writeResultFolder(path.join(directory, 'a'), a.scenario, a.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
-  await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
-  await writeFile(path.join(directory, 'comparison.json'), `${JSON.stringify(json, null, 2)}\n`, 'utf8');
-  await writeFile(path.join(directory, 'difference.geojson'), formatFootprint(difference), 'utf8');
-  return { comparison, directory, files: ['comparison.json', 'difference.geojson', 'a/', 'b/'], difference };
-}
-
-function side(s: ComparisonSide): ComparedRun {
-  const { grid } = s.result;
-  return {
-    label: `${s.scenario.name} (${s.path})`,
-    result: s.result,
-    receptors: s.scenario.receptors.map((receptor) => {
-      const [x_m, y_m] = grid.projection.toLocal(receptor.lon, receptor.lat);
-      return { id: receptor.id, x_m, y_m };
-    }),
-  };
-}
-
-function peakOf(result: ScenarioRunResult): number {
-  let peak = 0;
-  for (const value of result.footprint_ug_m3) if (value > peak) peak = value;
-  return peak;
+  await writeResultFolder(path.join(directory, 'a'), a.scenario, a.result, built.sideOptions);
+  await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, built.sideOptions);
+  for (const [name, text] of built.files) await writeFile(path.join(directory, name), text, 'utf8');
+  return { comparison: built.comparison, directory, files: [...built.files.map(([name]) => name), 'a/', 'b/'], difference: built.difference };
 }
 
 /** What stdout says after a comparison. */

@@ -15,8 +15,8 @@ import { formatIssues } from '../../scenarios/format/schema.ts';
 import type { SolverMode } from '../../scenarios/format/types.ts';
 import { ScenarioInputError } from '../../solver/drivers/runScenario.ts';
 import { UnavailableError, type SteadySolver } from '../../solver/drivers/solveSteady.ts';
-import { runSiting, type CandidateInput, type SitingResult } from '../../solver/siting/runSiting.ts';
-import type { ReceptorCombination } from '../../solver/siting/sitingMap.ts';
+import type { CandidateInput, SitingResult } from '../../solver/siting/runSiting.ts';
+import { computeSiting, parseCandidates, parseSitePolygon, SitingInputError } from '../analyses/siting.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { writeSitingFolder } from '../writers/siting.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
@@ -68,7 +68,7 @@ interface SiteArguments {
   mode?: SolverMode;
   stackId?: string;
   receptorIds?: string[];
-  combination?: ReceptorCombination;
+  weights?: number[];
   candidatesPath?: string;
   sitePolygonPath?: string;
   spacing_m?: number;
@@ -124,21 +124,24 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
       return 2;
     }
     const scenario = outcome.scenario;
-    const result = await runSiting(scenario, {
-      mode: args.mode,
-      stackId: args.stackId,
-      receptorIds: args.receptorIds,
-      combination: args.combination,
-      candidates,
-      sitePolygon,
-      spacing_m: args.spacing_m,
-      standardName: args.standardName,
-      level_ug_m3: args.level_ug_m3,
-      forwardRuns: args.forwardRuns,
-      keepFootprints: args.footprints,
-      solve: options.solve ?? workerSteadySolver,
-      control: { onProgress: (fraction, message) => progress.update(fraction, message) },
-    });
+    const result = await computeSiting(
+      scenario,
+      {
+        mode: args.mode,
+        stackId: args.stackId,
+        receptorIds: args.receptorIds,
+        weights: args.weights,
+        candidates,
+        sitePolygon,
+        spacing_m: args.spacing_m,
+        standard: args.standardName,
+        level_ug_m3: args.level_ug_m3,
+        forwardRuns: args.forwardRuns,
+        footprints: args.footprints,
+      },
+      options.solve ?? workerSteadySolver,
+      { onProgress: (fraction, message) => progress.update(fraction, message) },
+    );
     progress.update(1, 'writing the siting folder');
     const files = await writeSitingFolder(args.outDirectory, result, { levels_ug_m3: args.levels_ug_m3, site: scenario.site });
     progress.finish();
@@ -183,17 +186,16 @@ function readSiteArguments(argv: string[]): SiteArguments | 'help' {
   };
   const list = (name: string): string[] | undefined => text(name)?.split(',').map((entry) => entry.trim()).filter((entry) => entry !== '');
   const receptorIds = list('receptors');
-  let combination: ReceptorCombination | undefined;
+  let weightValues: number[] | undefined;
   const weights = list('weights');
   if (weights !== undefined) {
-    const values = weights.map((entry, n) => {
+    weightValues = weights.map((entry, n) => {
       const value = Number(entry);
       if (!/^[+]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(entry) || !Number.isFinite(value)) {
         throw new UsageError(`--weights: entry ${n + 1} ("${entry}") is not allowed; give one number >= 0 per receptor, e.g. --weights 1,2,1`);
       }
       return value;
     });
-    combination = { kind: 'weightedSum', weights: values };
   }
   const forwardRuns = positive('forward-runs', true);
   if (forwardRuns !== undefined && !Number.isInteger(forwardRuns)) throw new UsageError(`--forward-runs: ${forwardRuns} is not allowed; give a whole number >= 0`);
@@ -203,7 +205,7 @@ function readSiteArguments(argv: string[]): SiteArguments | 'help' {
     mode: text('mode') === undefined ? undefined : parseMode(text('mode') as string),
     stackId: text('stack'),
     receptorIds,
-    combination,
+    weights: weightValues,
     candidatesPath: text('candidates'),
     sitePolygonPath: text('site-polygon'),
     spacing_m: positive('spacing'),
@@ -229,50 +231,24 @@ async function readJson(file: string, option: string): Promise<unknown> {
   }
 }
 
-function lonLatOf(value: unknown, where: string): [number, number] {
-  if (!Array.isArray(value) || value.length < 2 || typeof value[0] !== 'number' || typeof value[1] !== 'number') {
-    throw new UsageError(`${where}: expected [lon, lat] in degrees; got ${JSON.stringify(value)}`);
+/** Read a file's JSON with a parser shared with the API; its complaints become usage errors. */
+async function readWith<T>(file: string, option: string, parse: (data: unknown, field: string) => T): Promise<T> {
+  const data = await readJson(file, option);
+  try {
+    return parse(data, option);
+  } catch (error) {
+    throw error instanceof SitingInputError ? new UsageError(error.message) : error;
   }
-  return [value[0], value[1]];
 }
 
 /** Candidates from a GeoJSON FeatureCollection of Points or a JSON list of {id, lon, lat}. */
 export async function readCandidates(file: string): Promise<CandidateInput[]> {
-  const data = await readJson(file, '--candidates');
-  if (Array.isArray(data)) {
-    return data.map((entry, n) => {
-      const { id, lon, lat } = (entry ?? {}) as { id?: unknown; lon?: unknown; lat?: unknown };
-      if (typeof lon !== 'number' || typeof lat !== 'number') throw new UsageError(`--candidates: entry ${n + 1} needs numeric "lon" and "lat" [deg]; got ${JSON.stringify(entry)}`);
-      return { id: id === undefined ? undefined : String(id), lon, lat };
-    });
-  }
-  const collection = data as { type?: unknown; features?: unknown };
-  if (collection?.type !== 'FeatureCollection' || !Array.isArray(collection.features)) {
-    throw new UsageError('--candidates: expected a GeoJSON FeatureCollection of Points or a JSON list of {"id", "lon", "lat"}');
-  }
-  return collection.features.map((feature, n) => {
-    const { geometry, id, properties } = (feature ?? {}) as { geometry?: { type?: unknown; coordinates?: unknown }; id?: unknown; properties?: Record<string, unknown> | null };
-    if (geometry?.type !== 'Point') throw new UsageError(`--candidates: feature ${n + 1} is not a Point (got ${JSON.stringify(geometry?.type)})`);
-    const [lon, lat] = lonLatOf(geometry.coordinates, `--candidates: feature ${n + 1}`);
-    const name = id ?? properties?.id ?? properties?.name;
-    return { id: name === undefined || name === null ? undefined : String(name), lon, lat };
-  });
+  return readWith(file, '--candidates', parseCandidates);
 }
 
 /** The site polygon's outer ring from a GeoJSON Polygon, a Feature of one or a FeatureCollection of one. */
 export async function readSitePolygon(file: string): Promise<[number, number][]> {
-  let data = (await readJson(file, '--site-polygon')) as { type?: unknown; features?: unknown[]; geometry?: unknown; coordinates?: unknown };
-  if (data?.type === 'FeatureCollection') {
-    if (!Array.isArray(data.features) || data.features.length !== 1) {
-      throw new UsageError(`--site-polygon: the FeatureCollection holds ${Array.isArray(data.features) ? data.features.length : 'no'} features; allowed: exactly one Polygon`);
-    }
-    data = data.features[0] as typeof data;
-  }
-  if (data?.type === 'Feature') data = data.geometry as typeof data;
-  if (data?.type !== 'Polygon' || !Array.isArray(data.coordinates) || !Array.isArray(data.coordinates[0])) {
-    throw new UsageError(`--site-polygon: expected a GeoJSON Polygon (or a Feature or FeatureCollection of one); got ${JSON.stringify(data?.type)}`);
-  }
-  return (data.coordinates[0] as unknown[]).map((position, n) => lonLatOf(position, `--site-polygon: position ${n + 1}`));
+  return readWith(file, '--site-polygon', parseSitePolygon);
 }
 
 function reportFailure(error: unknown, io: CommandIO): number {

@@ -4,17 +4,13 @@
  * the lowest stack height (within the tolerance) at which the highest PC falls below the target, with
  * the curve of PC against height: stack-height.json, stack-height.csv, stack-height.svg. Exit codes as `run`.
  */
-import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
-import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
-import { assessmentPlan } from '../../solver/assessment/standards.ts';
-import { findStackHeight, type StackHeightResult } from '../../solver/assessment/stackHeight.ts';
-import { ScenarioInputError } from '../../solver/drivers/runScenario.ts';
-import { createWorkerMemberRunner } from '../jobs/memberRunner.ts';
+import type { SolverMode } from '../../scenarios/format/types.ts';
+import { buildStackHeightFiles, computeStackHeight, resolveStackHeightTarget, TargetError, type StackHeightRequest } from '../analyses/stackHeight.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
-import { stackHeightCsv, stackHeightJson, stackHeightSvg } from '../writers/sweepFiles.ts';
 import { parseCommandLine, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
+import { onMemberThreads, writeBuiltFiles } from './memberCommand.ts';
 import { createProgressReporter } from './progress.ts';
 import { checkOutFolder, loadScenarioForCommand, reportFailure } from './run.ts';
 import { parseNumberList } from './sweep.ts';
@@ -108,19 +104,6 @@ function readArguments(argv: string[]): StackHeightArguments | 'help' {
   };
 }
 
-/** The target in ug/m3 and how it was set; a message (exit 2) when the standard is not assessed. */
-function resolveTarget(scenario: Scenario, args: StackHeightArguments): { target_ug_m3: number; basis: string } | string {
-  if (args.targetPercent === undefined) return { target_ug_m3: args.target_ug_m3!, basis: `given: ${args.target_ug_m3} ug/m3` };
-  const standards = scenario.assessment === undefined ? [] : assessmentPlan(scenario.assessment, scenario.pollutant.name).standards;
-  const standard = standards.find((s) => s.name === args.standard);
-  if (standard === undefined) {
-    const names = standards.map((s) => JSON.stringify(s.name)).join(', ');
-    return `--standard: ${JSON.stringify(args.standard)} is not an assessed standard of this scenario; ${names === '' ? 'the scenario has no assessment standards' : `use one of ${names}`}`;
-  }
-  const target = Number(((args.targetPercent * standard.limit_ug_m3) / 100).toPrecision(12));
-  return { target_ug_m3: target, basis: `${args.targetPercent} % of ${standard.name} (${standard.limit_ug_m3} ug/m3)` };
-}
-
 /** Run `plumeplan stack-height`; returns the exit code. */
 export async function stackHeightCommand(argv: string[], io: CommandIO): Promise<number> {
   let args: StackHeightArguments | 'help';
@@ -136,48 +119,32 @@ export async function stackHeightCommand(argv: string[], io: CommandIO): Promise
     return 0;
   }
   const progress = createProgressReporter(io.stderr, io.now);
-  const interrupt = new AbortController();
-  const onInterrupt = (): void => interrupt.abort();
   try {
     if (!(await checkOutFolder(args.outDirectory, io, 'stack-height'))) return 2;
     const scenario = await loadScenarioForCommand(args.scenarioPath, io, 'stack-height');
     if (scenario === null) return 2;
-    const target = resolveTarget(scenario, args);
-    if (typeof target === 'string') {
-      io.stderr.write(`plumeplan stack-height: ${target}\n`);
+    const request: StackHeightRequest = {
+      target_ug_m3: args.target_ug_m3,
+      targetPercent: args.targetPercent,
+      standard: args.standard,
+      at: args.at,
+      minHeight_m: args.min_m,
+      maxHeight_m: args.max_m,
+      tolerance_m: args.tolerance_m,
+      sourceId: args.sourceId,
+    };
+    let target: { target_ug_m3: number; basis: string };
+    try {
+      target = resolveStackHeightTarget(scenario, request);
+    } catch (error) {
+      if (!(error instanceof TargetError)) throw error;
+      io.stderr.write(`plumeplan stack-height: --${error.field}: ${error.message}\n`);
       return 2;
     }
     const mode = args.mode ?? scenario.solver.mode;
-    const runner = createWorkerMemberRunner(scenario, mode);
-    process.once('SIGINT', onInterrupt);
-    let result: StackHeightResult;
-    try {
-      result = await findStackHeight(
-        scenario,
-        {
-          sourceId: args.sourceId,
-          target_ug_m3: target.target_ug_m3,
-          at: args.at,
-          standard: args.targetPercent !== undefined ? args.standard : undefined,
-          minHeight_m: args.min_m,
-          maxHeight_m: args.max_m,
-          tolerance_m: args.tolerance_m,
-        },
-        { runMember: runner.runMember, lanes: runner.lanes, control: { signal: interrupt.signal, onProgress: (f, m) => progress.update(f, m) } },
-      ).catch((error: unknown) => {
-        throw error instanceof RangeError ? new ScenarioInputError(error.message, { cause: error }) : error;
-      });
-    } finally {
-      process.off('SIGINT', onInterrupt);
-      await runner.close();
-    }
-    await mkdir(args.outDirectory, { recursive: true });
-    const files: [string, string][] = [
-      ['stack-height.json', `${JSON.stringify(stackHeightJson(result, scenario.name, target.basis), null, 2)}\n`],
-      ['stack-height.csv', stackHeightCsv(result)],
-      ['stack-height.svg', stackHeightSvg(result, scenario.name)],
-    ];
-    for (const [name, text] of files) await writeFile(path.join(args.outDirectory, name), text, 'utf8');
+    const result = await onMemberThreads(scenario, mode, progress, (runner, control) => computeStackHeight(scenario, request, target.target_ug_m3, runner, control));
+    const files = buildStackHeightFiles(result, scenario.name, target.basis);
+    await writeBuiltFiles(args.outDirectory, files);
     progress.finish();
     io.stdout.write(
       `${scenario.name}: stack ${result.sourceId}, target ${target.basis}, ${result.runs} runs, ${mode} mode\n` +

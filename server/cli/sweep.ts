@@ -3,16 +3,14 @@
  * run one parameter over a list of values and write sweep.csv (the table), sweep.svg (the chart of PC
  * against the parameter) and sweep.json. Exit codes as `run`.
  */
-import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { SolverMode } from '../../scenarios/format/types.ts';
-import { runSweep, SWEEP_PARAMETERS, type SweepParameter, type SweepResult } from '../../solver/assessment/sweep.ts';
-import { ScenarioInputError } from '../../solver/drivers/runScenario.ts';
-import { createWorkerMemberRunner } from '../jobs/memberRunner.ts';
+import { SWEEP_PARAMETERS, type SweepParameter, type SweepResult } from '../../solver/assessment/sweep.ts';
+import { buildSweepFiles, computeSweep } from '../analyses/sweep.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
-import { sweepCsv, sweepJson, sweepSvg } from '../writers/sweepFiles.ts';
 import { parseCommandLine, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
+import { onMemberThreads, writeBuiltFiles } from './memberCommand.ts';
 import { createProgressReporter } from './progress.ts';
 import { checkOutFolder, loadScenarioForCommand, reportFailure } from './run.ts';
 
@@ -114,35 +112,15 @@ export async function sweepCommand(argv: string[], io: CommandIO): Promise<numbe
     return 0;
   }
   const progress = createProgressReporter(io.stderr, io.now);
-  const interrupt = new AbortController();
-  const onInterrupt = (): void => interrupt.abort();
   try {
     if (!(await checkOutFolder(args.outDirectory, io, 'sweep'))) return 2;
     const scenario = await loadScenarioForCommand(args.scenarioPath, io, 'sweep');
     if (scenario === null) return 2;
     const mode = args.mode ?? scenario.solver.mode;
-    const runner = createWorkerMemberRunner(scenario, mode);
-    process.once('SIGINT', onInterrupt);
-    let sweep: SweepResult;
-    try {
-      sweep = await runSweep(
-        scenario,
-        { parameter: args.parameter, values: args.values, sourceId: args.sourceId },
-        { runMember: runner.runMember, lanes: runner.lanes, control: { signal: interrupt.signal, onProgress: (f, m) => progress.update(f, m) } },
-      ).catch((error: unknown) => {
-        throw error instanceof RangeError ? new ScenarioInputError(error.message, { cause: error }) : error;
-      });
-    } finally {
-      process.off('SIGINT', onInterrupt);
-      await runner.close();
-    }
-    await mkdir(args.outDirectory, { recursive: true });
-    const files: [string, string][] = [
-      ['sweep.csv', sweepCsv(sweep)],
-      ['sweep.svg', sweepSvg(sweep, scenario.name)],
-      ['sweep.json', `${JSON.stringify(sweepJson(sweep, scenario.name), null, 2)}\n`],
-    ];
-    for (const [name, text] of files) await writeFile(path.join(args.outDirectory, name), text, 'utf8');
+    const request = { parameter: args.parameter, values: args.values, sourceId: args.sourceId };
+    const sweep = await onMemberThreads(scenario, mode, progress, (runner, control) => computeSweep(scenario, request, runner, control));
+    const files = buildSweepFiles(sweep, scenario.name);
+    await writeBuiltFiles(args.outDirectory, files);
     progress.finish();
     io.stdout.write(
       `${scenario.name}: ${sweep.members.length} values of ${sweep.parameter}${sweep.sourceId ? ` (${sweep.sourceId})` : ''}, ${sweep.runs} ${sweep.runs === 1 ? 'run' : 'runs'}, ${mode} mode\n` +

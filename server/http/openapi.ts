@@ -9,8 +9,12 @@ import {
   errorSchema,
   revisionRecordSchema,
   runAcceptedSchema,
+  compareRequestSchema,
   runRequestSchema,
   runSchema,
+  siteRequestSchema,
+  stackHeightRequestSchema,
+  sweepRequestSchema,
   scenarioDocumentSchema,
   scenarioPageSchema,
   scenarioRecordSchema,
@@ -55,6 +59,7 @@ export function openApiDocument(): JsonObject {
       description: `Scenarios kept with their revisions, runs computed in the background, and their results. ${SCREENING_CAUTION}`,
     },
     servers: [{ url: '/' }],
+    security: [{}, { token: [] }],
     components: {
       schemas: {
         Scenario: schemaOf(scenarioSchema, 'input'),
@@ -64,7 +69,12 @@ export function openApiDocument(): JsonObject {
         ScenarioPage: schemaOf(scenarioPageSchema),
         Revision: schemaOf(revisionRecordSchema),
         Validation: schemaOf(validationSchema),
-        RunRequest: schemaOf(runRequestSchema, 'input'),
+        RunRequest: { oneOf: [ref('ScenarioRunRequest'), ref('CompareRequest'), ref('SweepRequest'), ref('StackHeightRequest'), ref('SiteRequest')] },
+        ScenarioRunRequest: schemaOf(runRequestSchema, 'input'),
+        CompareRequest: schemaOf(compareRequestSchema, 'input'),
+        SweepRequest: schemaOf(sweepRequestSchema, 'input'),
+        StackHeightRequest: schemaOf(stackHeightRequestSchema, 'input'),
+        SiteRequest: schemaOf(siteRequestSchema, 'input'),
         RunAccepted: schemaOf(runAcceptedSchema),
         Run: schemaOf(runSchema),
       },
@@ -122,13 +132,14 @@ export function openApiDocument(): JsonObject {
       },
       '/api/runs': {
         post: {
-          summary: 'Queue a run of a saved scenario revision',
+          summary: 'Queue a run: of a saved scenario revision (kind "scenario", the default), or a compare, sweep, stack-height or site run (see docs/http-api.md)',
           requestBody: { required: true, content: json(ref('RunRequest')) },
           responses: {
             '202': { description: 'queued (or an identical run is already under way)', content: json(ref('RunAccepted')) },
             '200': { description: 'an identical run is already done', content: json(ref('RunAccepted')) },
-            '404': errorResponse('no such scenario or revision'),
-            '422': errorResponse('the scenario cannot run as stored (grid too large, a source outside the domain...)'),
+            '404': errorResponse('no such scenario, revision or (compare) run'),
+            '409': errorResponse('compare: a side given as a run that is not done'),
+            '422': errorResponse('the scenario cannot run as stored (grid too large, a source outside the domain...), or an option does not fit it (unknown source, a value out of range...)'),
             '429': errorResponse('too many queued or running runs for this client'),
             ...COMMON_ERRORS,
           },
@@ -144,7 +155,16 @@ export function openApiDocument(): JsonObject {
         get: { summary: 'A run: status, progress, error, result files', responses: { '200': { description: 'the run', content: json(ref('Run')) }, '404': errorResponse('no such run') } },
       },
       '/api/runs/{id}/events': {
-        parameters: [idParameter()],
+        parameters: [
+          idParameter(),
+          {
+            name: 'access_token',
+            in: 'query',
+            required: false,
+            schema: { type: 'string' },
+            description: "the server's token, for a browser's EventSource (which cannot send headers); this route only",
+          },
+        ],
         get: {
           summary: 'Progress as server-sent events: "status" and "progress" events, data {id, status, progress, message, error}; ends after the final status',
           responses: { '200': { description: 'an event stream', content: { 'text/event-stream': { schema: { type: 'string' } } } }, '404': errorResponse('no such run') },
@@ -166,9 +186,9 @@ export function openApiDocument(): JsonObject {
         },
       },
       '/api/runs/{id}/results/{name}': {
-        parameters: [idParameter(), { name: 'name', in: 'path', required: true, schema: { type: 'string', enum: ['summary.json', 'receptors.csv', 'footprint.geojson', 'windrose.svg', 'ground-field.bin'] } }],
+        parameters: [idParameter(), { name: 'name', in: 'path', required: true, schema: { type: 'string', pattern: '^[a-z0-9][a-z0-9._-]{0,63}$', examples: ['summary.json', 'receptors.csv', 'footprint.geojson', 'windrose.svg', 'ground-field.bin', 'ground.tif', 'map.png', 'report.pdf', 'plumeplan-run.zip', 'comparison.json', 'sweep.csv', 'stack-height.json', 'siting.json', 'siting-map.tif'] } }],
         get: {
-          summary: 'One result file of a finished run (ground-field.bin: see docs/http-api.md)',
+          summary: "One result file of a finished run, as listed in the run's results (names by kind, and ground-field.bin: see docs/http-api.md)",
           responses: {
             '200': {
               description: 'the file',
@@ -178,6 +198,11 @@ export function openApiDocument(): JsonObject {
                 'application/geo+json': { schema: { type: 'object' } },
                 'image/svg+xml': { schema: { type: 'string' } },
                 'application/vnd.plumeplan.groundfield': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'image/tiff': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'image/png': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'application/pdf': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'application/zip': { schema: { type: 'string', contentEncoding: 'binary' } },
+                'text/html': { schema: { type: 'string' } },
               },
             },
             '404': errorResponse('no such run or file'),

@@ -36,15 +36,16 @@ export interface RunPlan {
  * @param raw the scenario revision as stored
  * @param mode the mode asked for, or undefined for the scenario's own
  * @param maxCells the most cells a run may have
+ * @param side how the fields start: "" for a run's scenario, "a." or "b." for a comparison's sides
  * @throws RunRefusedError (422) naming the field
  */
-export function planRun(raw: unknown, mode: SolverMode | undefined, maxCells: number): RunPlan {
+export function planRun(raw: unknown, mode: SolverMode | undefined, maxCells: number, side = ''): RunPlan {
   const parsed = parseScenario(raw);
   if (!parsed.ok) {
     const [first] = parsed.issues;
     throw new RunRefusedError(422, {
       error: `the stored scenario no longer passes the format: ${first.path}: ${first.message}`,
-      field: `scenario.${first.path}`,
+      field: `${side}scenario.${first.path}`,
       allowed: first.message,
     });
   }
@@ -57,7 +58,7 @@ export function planRun(raw: unknown, mode: SolverMode | undefined, maxCells: nu
       domain = deriveDomain({ sources: scenario.sources, receptors: scenario.receptors, projection: createLocalProjection(scenario.site) });
     } catch (error) {
       if (!(error instanceof RangeError)) throw error;
-      throw new RunRefusedError(422, { error: error.message, field: `scenario.${error.message.split(':')[0]}` });
+      throw new RunRefusedError(422, { error: error.message, field: `${side}scenario.${error.message.split(':')[0]}` });
     }
   }
   const gridCells = estimateGridMemory_bytes(domain) / (GRID_ARRAYS_PER_CELL * 8);
@@ -67,7 +68,7 @@ export function planRun(raw: unknown, mode: SolverMode | undefined, maxCells: nu
       error:
         `scenario.domain: the grid would have ${cells} cells in ${runMode} mode; this server runs at most ${maxCells}. ` +
         'Use a larger spacing_m, a smaller halfWidth_m or fewer layers',
-      field: 'scenario.domain',
+      field: `${side}scenario.domain`,
       value: domain,
       allowed: `at most ${maxCells} cells`,
     });
@@ -75,7 +76,7 @@ export function planRun(raw: unknown, mode: SolverMode | undefined, maxCells: nu
   const issues = checkScenarioGeometry(scenario);
   if (issues.length > 0) {
     const [first] = issues;
-    throw new RunRefusedError(422, { error: `${first.path}: ${first.message}`, field: `scenario.${first.path}`, allowed: first.message });
+    throw new RunRefusedError(422, { error: `${first.path}: ${first.message}`, field: `${side}scenario.${first.path}`, allowed: first.message });
   }
   return { scenario, mode: runMode, cells, estimatedMemory_bytes: runMode === 'grid' ? estimateGridMemory_bytes(domain) : 0 };
 }

@@ -1,7 +1,11 @@
 /**
  * What a run computes, wherever it runs (a worker thread today): the scenario is checked again, run
  * with runScenario, and turned into the result files the server stores: summary.json, receptors.csv,
- * footprint.geojson, the wind rose when there is one, and the ground field as binary for the map.
+ * footprint.geojson, the wind rose when there is one, and the ground field as binary for the map; with
+ * `pack` "quick" or "full", also the consultation pack `plumeplan run` writes (ground.tif, map.svg,
+ * report.html, receptors-with-caution.csv and the zip; "full" adds map.png and report.pdf). The pack is
+ * made here, in the run's thread, because it needs the whole run result, which is not kept afterwards.
+ * Compare, sweep, stack-height and site runs are computed by ./computeAnalysis.ts.
  */
 import { parseScenario } from '../../scenarios/format/schema.ts';
 import type { SolverMode } from '../../scenarios/format/types.ts';
@@ -13,8 +17,11 @@ import { checkScenarioGeometry } from '../scenarioFiles/semantics.ts';
 import type { ResultFileContent } from '../storage/resultFiles.ts';
 import type { RunError } from '../storage/runStore.ts';
 import { encodeGroundField, GROUND_FIELD_CONTENT_TYPE, GROUND_FIELD_FILE } from '../writers/groundField.ts';
-import { buildResultFiles, FOOTPRINT_FILE, RECEPTORS_FILE, SUMMARY_FILE, WIND_ROSE_FILE } from '../writers/writeResultFolder.ts';
-import type { RunJob } from './runExecutor.ts';
+import type { ContextLayer } from '../writers/map/mapSvg.ts';
+import { runProvenance } from '../writers/provenance.ts';
+import { buildConsultationPack, buildResultFiles, FOOTPRINT_FILE, RECEPTORS_FILE, SUMMARY_FILE, WIND_ROSE_FILE } from '../writers/writeResultFolder.ts';
+import { asResultFiles, computeAnalysis, contentTypeOf, inputErrorDetail, RunInputError } from './computeAnalysis.ts';
+import type { PackChoice, RunJob } from './runExecutor.ts';
 
 /** Content types of the result files. */
 export const RESULT_CONTENT_TYPES: Record<string, string> = {
@@ -25,13 +32,7 @@ export const RESULT_CONTENT_TYPES: Record<string, string> = {
   [GROUND_FIELD_FILE]: GROUND_FIELD_CONTENT_TYPE,
 };
 
-/** A run that cannot go ahead as asked, in the API's error shape. */
-export class RunInputError extends Error {
-  override name = 'RunInputError';
-  constructor(readonly detail: RunError) {
-    super(detail.error);
-  }
-}
+export { RunInputError };
 
 /**
  * Compute one run.
@@ -45,11 +46,19 @@ export async function computeRun(job: RunJob, control: RunControl = {}): Promise
     case 'scenario':
       return computeScenarioRun(job, control);
     default:
-      throw new RunInputError({ error: `kind: ${JSON.stringify(job.kind)} is not a kind of run`, field: 'kind', value: job.kind });
+      return computeAnalysis(job, control);
   }
 }
 
+/** The reproducibility block's "command" for a run the server made: the request that asked for it. */
+export function serverCommand(job: RunJob): string {
+  const { contextLayers, ...options } = job.options;
+  const layers = Array.isArray(contextLayers) ? `, ${contextLayers.length} context layer(s)` : '';
+  return `plumeplan server: POST /api/runs ${JSON.stringify({ kind: job.kind, ...options })}${layers}`;
+}
+
 async function computeScenarioRun(job: RunJob, control: RunControl): Promise<ResultFileContent[]> {
+  const startedAt = new Date();
   const parsed = parseScenario(job.scenario);
   if (!parsed.ok) {
     const [first] = parsed.issues;
@@ -77,15 +86,20 @@ async function computeScenarioRun(job: RunJob, control: RunControl): Promise<Res
   const encoder = new TextEncoder();
   const files: ResultFileContent[] = built.contents.map(([name, text]) => ({
     name,
-    contentType: RESULT_CONTENT_TYPES[name] ?? 'application/octet-stream',
+    contentType: RESULT_CONTENT_TYPES[name] ?? contentTypeOf(name),
     content: encoder.encode(text),
   }));
   files.push({ name: GROUND_FIELD_FILE, contentType: GROUND_FIELD_CONTENT_TYPE, content: encodeGroundField(scenario, result, GROUND_LEVEL_HEIGHT_m) });
+  const pack = (job.options.pack as PackChoice | undefined) ?? 'none';
+  if (pack !== 'none') {
+    control.onProgress?.(1, pack === 'full' ? 'writing the report, the map figures and the zip' : 'writing the map figure, the report page and the zip');
+    const packFiles = await buildConsultationPack(scenario, result, built, {
+      outputs: pack,
+      crs: job.options.crs as string | undefined,
+      contextLayers: job.options.contextLayers as ContextLayer[] | undefined,
+      provenance: runProvenance(scenario, { runDate: startedAt, command: serverCommand(job) }),
+    });
+    files.push(...asResultFiles(packFiles.map((file) => [file.name, file.data])));
+  }
   return files;
-}
-
-/** The solver's input messages start with the field path ("sources[1]: ..."): name it. */
-function inputErrorDetail(message: string): RunError {
-  const match = /^([A-Za-z_][\w]*(?:\[\d+\]|\.[A-Za-z_][\w]*)*):/.exec(message);
-  return { error: message, field: match === null ? 'scenario' : `scenario.${match[1]}` };
 }

@@ -6,16 +6,25 @@
 import type { ResultFileContent } from '../storage/resultFiles.ts';
 import type { RunError } from '../storage/runStore.ts';
 
-/** Kinds of run the executor knows (assessment runs join this list as they land). */
-export const RUN_KINDS = ['scenario'] as const;
+/**
+ * Kinds of run the executor knows: one run of a scenario; a comparison of two runs; a sweep of one
+ * parameter; the stack-height search; siting a stack (./computeAnalysis.ts computes the last four).
+ */
+export const RUN_KINDS = ['scenario', 'compare', 'sweep', 'stack-height', 'site'] as const;
 export type RunKind = (typeof RUN_KINDS)[number];
+
+/** Which consultation pack a scenario run makes: none, all but the rendered files (map.png, report.pdf), or all. */
+export const PACK_CHOICES = ['none', 'quick', 'full'] as const;
+export type PackChoice = (typeof PACK_CHOICES)[number];
 
 /** One run to compute. Everything in it is plain JSON, so it can travel to a thread or a machine. */
 export interface RunJob {
   id: string;
   kind: RunKind;
-  /** the scenario revision as stored (checked again where it runs) */
+  /** the scenario revision as stored (checked again where it runs); a comparison's side A */
   scenario: unknown;
+  /** a comparison's side B, as stored */
+  secondScenario?: unknown;
   /** the run's options, e.g. `{ mode: 'gaussian' }` */
   options: Record<string, unknown>;
 }

@@ -11,7 +11,8 @@ import type { SolverMode } from '../../scenarios/format/types.ts';
 import { canonicalJson, sha256Hex } from '../storage/ids.ts';
 import type { ResultFileStore } from '../storage/resultFiles.ts';
 import { FINAL_STATUSES, type RunError, type RunRecord, type RunStatus, type RunStore } from '../storage/runStore.ts';
-import { NotFoundError, type ScenarioStore } from '../storage/scenarioStore.ts';
+import { NotFoundError, type RevisionWithBody, type ScenarioRecord, type ScenarioStore } from '../storage/scenarioStore.ts';
+import { admitScenarioPack, admitSite, admitStackHeight, admitSweep, largerPacks, type ScenarioPackInput, type SiteOptionsInput, type StackHeightOptionsInput, type SweepOptionsInput } from './analysisAdmission.ts';
 import { planRun, RunRefusedError } from './admission.ts';
 import type { RunEvent, RunExecutor, RunKind } from './runExecutor.ts';
 
@@ -47,8 +48,29 @@ export interface SubmitRequest {
   revision?: number;
   kind: RunKind;
   mode?: SolverMode;
+  /** the kind's own options as the request gave them (shape checked; checked against the scenario here) */
+  options?: Record<string, unknown>;
+  /** a comparison's side B (side A is scenarioId, revision, mode) */
+  second?: ComparedSideRequest;
+  /** a comparison's side A when it was given as a finished run */
+  firstRunId?: string;
   /** who asked (an address or a token), for the per-client limit */
   client: string;
+}
+
+/** One side of a comparison: a stored scenario revision, or a finished scenario run. */
+export interface ComparedSideRequest {
+  scenarioId?: string;
+  revision?: number;
+  runId?: string;
+}
+
+/** A side resolved to the scenario revision and mode it runs. */
+export interface ResolvedSide {
+  scenarioId: string;
+  revision?: number;
+  mode?: SolverMode;
+  runId?: string;
 }
 
 export interface RunManagerDependencies {
@@ -91,13 +113,59 @@ export class RunManager {
    */
   submit(request: SubmitRequest): { run: RunRecord; reused: boolean } {
     const { scenarios, runs, executor, logger } = this.deps;
-    const scenario = scenarios.get(request.scenarioId);
-    const revision = scenarios.revision(scenario.id, request.revision);
-    const plan = planRun(revision.scenario, request.mode, this.limits.maxCellsPerRun);
-    const options: Record<string, unknown> = { mode: plan.mode };
-    const dedupeKey = sha256Hex(canonicalJson({ scenarioId: scenario.id, checksum: revision.checksum, kind: request.kind, options }));
-
-    const earlier = runs.findReusable(dedupeKey);
+    const compare = request.kind === 'compare';
+    const first = this.scenarioSide(request.scenarioId, request.revision, compare ? 'a' : '');
+    const plan = planRun(first.revision.scenario, request.mode, this.limits.maxCellsPerRun, compare ? 'a.' : '');
+    let options: Record<string, unknown> = { mode: plan.mode };
+    let second: { revision: RevisionWithBody; mode: SolverMode } | undefined;
+    switch (request.kind) {
+      case 'scenario':
+        options = { mode: plan.mode, ...admitScenarioPack(plan.scenario, (request.options ?? {}) as ScenarioPackInput) };
+        break;
+      case 'compare': {
+        const side = request.second as ResolvedSide;
+        const found = this.scenarioSide(side.scenarioId, side.revision, 'b');
+        const secondPlan = planRun(found.revision.scenario, side.mode, this.limits.maxCellsPerRun, 'b.');
+        second = { revision: found.revision, mode: secondPlan.mode };
+        const describe = (revision: RevisionWithBody, mode: SolverMode, runId?: string) => ({
+          scenarioId: revision.scenarioId,
+          revision: revision.revision,
+          mode,
+          ...(runId !== undefined ? { runId } : {}),
+        });
+        options = {
+          mode: plan.mode,
+          a: describe(first.revision, plan.mode, request.firstRunId),
+          b: describe(found.revision, secondPlan.mode, side.runId),
+          ...(request.options?.levels_ug_m3 !== undefined ? { levels_ug_m3: request.options.levels_ug_m3 } : {}),
+        };
+        break;
+      }
+      case 'sweep':
+        options = { mode: plan.mode, ...admitSweep(plan.scenario, request.options as unknown as SweepOptionsInput) };
+        break;
+      case 'stack-height':
+        options = { mode: plan.mode, ...admitStackHeight(plan.scenario, request.options as unknown as StackHeightOptionsInput) };
+        break;
+      case 'site':
+        options = { mode: plan.mode, ...admitSite(plan.scenario, (request.options ?? {}) as SiteOptionsInput) };
+        break;
+    }
+    const scenario = first.scenario;
+    const revision = first.revision;
+    const keyOf = (keyOptions: Record<string, unknown>): string =>
+      sha256Hex(
+        canonicalJson({ scenarioId: scenario.id, checksum: revision.checksum, kind: request.kind, options: keyOptions, ...(second !== undefined ? { secondChecksum: second.revision.checksum } : {}) }),
+      );
+    const dedupeKey = keyOf(options);
+    // A run that made a larger pack (same CRS and layers) answers a request for a smaller one too, and
+    // any run of the same mode answers a request without a pack (its core files are the same).
+    const larger = request.kind === 'scenario' ? largerPacks(options).map(keyOf) : [];
+    const earlier =
+      [dedupeKey, ...larger].map((key) => runs.findReusable(key)).find((run) => run !== undefined) ??
+      (request.kind === 'scenario' && options.pack === undefined
+        ? runs.findReusableOf(scenario.id, revision.checksum, 'scenario').find((run) => run.options.mode === options.mode)
+        : undefined);
     if (earlier !== undefined) {
       logger.info({ run: earlier.id, status: earlier.status, reused: true }, 'identical submission served from an earlier run');
       return { run: earlier, reused: true };
@@ -121,8 +189,50 @@ export class RunManager {
       client: request.client,
     });
     logger.info({ run: run.id, scenario: scenario.id, revision: revision.revision, kind: run.kind, mode: plan.mode, cells: plan.cells, status: 'queued' }, 'run queued');
-    executor.submit({ id: run.id, kind: request.kind, scenario: revision.scenario, options }, (event) => this.onEvent(run.id, event));
+    executor.submit(
+      { id: run.id, kind: request.kind, scenario: revision.scenario, ...(second !== undefined ? { secondScenario: second.revision.scenario } : {}), options },
+      (event) => this.onEvent(run.id, event),
+    );
     return { run: runs.get(run.id) as RunRecord, reused: false };
+  }
+
+  /**
+   * A comparison side given as a finished run: the scenario revision and mode that run used.
+   * @param field how the side is named in errors ("a" or "b")
+   * @throws NotFoundError (no such run); RunRefusedError (409 not done, 422 not a scenario run)
+   */
+  resolveRunSide(runId: string, field: string): ResolvedSide {
+    const run = this.deps.runs.get(runId);
+    if (run === undefined) throw new NotFoundError(`${field}.runId`, runId, `${field}.runId: no run with id ${runId}`);
+    if (run.status !== 'done') {
+      throw new RunRefusedError(409, {
+        error: `${field}.runId: run ${runId} is ${run.status}; a comparison takes finished runs`,
+        field: `${field}.runId`,
+        value: runId,
+        allowed: 'a run whose status is done',
+      });
+    }
+    if (run.kind !== 'scenario') {
+      throw new RunRefusedError(422, {
+        error: `${field}.runId: run ${runId} is a ${run.kind} run; a comparison takes runs of a scenario`,
+        field: `${field}.runId`,
+        value: runId,
+        allowed: 'a run of kind "scenario"',
+      });
+    }
+    return { scenarioId: run.scenarioId, revision: run.revision, mode: run.options.mode as SolverMode, runId };
+  }
+
+  /** The stored scenario and revision, with errors naming the side's fields ("a.scenarioId"...). */
+  private scenarioSide(scenarioId: string, revisionNumber: number | undefined, side: string): { scenario: ScenarioRecord; revision: RevisionWithBody } {
+    const { scenarios } = this.deps;
+    try {
+      const scenario = scenarios.get(scenarioId);
+      return { scenario, revision: scenarios.revision(scenario.id, revisionNumber) };
+    } catch (error) {
+      if (side === '' || !(error instanceof NotFoundError)) throw error;
+      throw new NotFoundError(`${side}.${error.field === 'id' ? 'scenarioId' : error.field}`, error.value, `${side}: ${error.message}`);
+    }
   }
 
   /**

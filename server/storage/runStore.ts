@@ -124,6 +124,20 @@ export class RunStore {
     return row === undefined ? undefined : this.get(row.id);
   }
 
+  /**
+   * Runs of one scenario revision content and kind that finished well or are under way, newest first,
+   * whatever their options: for a caller that decides itself which options answer (a run with a
+   * consultation pack answers a request without one).
+   */
+  findReusableOf(scenarioId: string, checksum: string, kind: string): RunRecord[] {
+    const rows = this.db
+      .prepare(
+        `SELECT id FROM runs WHERE scenario_id = ? AND checksum = ? AND kind = ? AND status IN ('done', 'queued', 'running') ORDER BY created_at DESC LIMIT 50`,
+      )
+      .all(scenarioId, checksum, kind) as { id: string }[];
+    return rows.map((row) => this.get(row.id) as RunRecord);
+  }
+
   /** Runs of a client that are queued or running. */
   countActive(client: string): number {
     return (

@@ -189,14 +189,14 @@ export interface SitingFolderOptions {
 }
 
 /**
- * Write the siting folder: siting.json, candidates.csv, siting-map.tif, siting.geojson, and a
- * footprint-<id>.geojson for each candidate that kept its ground-level field.
+ * Build the siting folder's files in memory: siting.json, candidates.csv, siting-map.tif,
+ * siting.geojson, and a footprint-<id>.geojson for each candidate that kept its ground-level field.
+ * What `writeSitingFolder` writes and what the server stores for a site job.
  *
- * @returns the file names written, in order
- * @throws RangeError when the folder exists and is not a folder, or the levels are invalid
+ * @returns [file name, content] in the order written
+ * @throws RangeError when the levels are invalid
  */
-export async function writeSitingFolder(directory: string, result: SitingResult, options: SitingFolderOptions): Promise<string[]> {
-  // Everything is built before the disk is touched, so a failure leaves no half-written folder.
+export function buildSitingFiles(result: SitingResult, options: SitingFolderOptions): [string, string | Uint8Array][] {
   const receptorBands = result.map.perReceptor_ug_m3.length < MAX_BANDS ? result.map.perReceptor_ug_m3 : [];
   const description = `${SCREENING_CAUTION} Band 1: ${result.map.receptorWeights === null ? 'highest' : 'weighted'} PC [ug/m3], stack at each pixel. See siting.json.`;
   const tiff = localGridGeoTiff(result.grid, [result.map.combined_ug_m3, ...receptorBands], { site: options.site, mask: result.siteMask, description });
@@ -208,13 +208,24 @@ export async function writeSitingFolder(directory: string, result: SitingResult,
     footprints.push([`footprint-${candidate.id.replace(/[^\w.-]/g, '_')}.geojson`, formatFootprint(collection)]);
   }
   const files: Record<string, string> = { geotiff: SITING_MAP_FILE, geojson: SITING_GEOJSON_FILE, candidates: CANDIDATES_CSV_FILE };
-  const texts: [string, string | Uint8Array][] = [
+  return [
     [SITING_JSON_FILE, `${JSON.stringify(sitingJson(result, files), null, 2)}\n`],
     [CANDIDATES_CSV_FILE, candidatesCsv(result)],
     [SITING_MAP_FILE, tiff],
     [SITING_GEOJSON_FILE, `${JSON.stringify(geojson)}\n`],
     ...footprints,
   ];
+}
+
+/**
+ * Write the siting folder (the files of `buildSitingFiles`).
+ *
+ * @returns the file names written, in order
+ * @throws RangeError when the folder exists and is not a folder, or the levels are invalid
+ */
+export async function writeSitingFolder(directory: string, result: SitingResult, options: SitingFolderOptions): Promise<string[]> {
+  // Everything is built before the disk is touched, so a failure leaves no half-written folder.
+  const texts = buildSitingFiles(result, options);
   const existing = await stat(directory).catch(() => null);
   if (existing !== null && !existing.isDirectory()) throw new RangeError(`siting folder ${directory}: exists and is not a folder; give a folder to write the results into`);
   await mkdir(directory, { recursive: true });

@@ -9,7 +9,10 @@ import { z } from 'zod';
 import type { RunManager, RunUpdate } from '../../jobs/runManager.ts';
 import { RESULT_NAME_PATTERN, type ResultFileStore } from '../../storage/resultFiles.ts';
 import { FINAL_STATUSES, type RunRecord } from '../../storage/runStore.ts';
-import { idSchema, pageQuerySchema, parseRequest, runRequestSchema } from '../apiSchemas.ts';
+import { compareRequestSchema, idSchema, pageQuerySchema, parseRequest, RUN_REQUEST_SCHEMAS, runRequestSchema } from '../apiSchemas.ts';
+import { RUN_KINDS, type RunKind } from '../../jobs/runExecutor.ts';
+import type { ResolvedSide, SubmitRequest } from '../../jobs/runManager.ts';
+import type { SolverMode } from '../../../scenarios/format/types.ts';
 import { ApiError, badRequest } from '../errors.ts';
 import { idParam, requireJson } from '../requestChecks.ts';
 import type { RunStore } from '../../storage/runStore.ts';
@@ -30,14 +33,7 @@ export function runRoutes(deps: RunRouteDependencies): Router {
   const router = Router();
 
   router.post('/', requireJson, (request, response) => {
-    const body = parseRequest(runRequestSchema, request.body);
-    const { run, reused } = manager.submit({
-      scenarioId: body.scenarioId,
-      revision: body.revision,
-      kind: body.kind ?? 'scenario',
-      mode: body.mode,
-      client: deps.clientOf(request),
-    });
+    const { run, reused } = manager.submit(submitRequestOf(request.body, manager, deps.clientOf(request)));
     const url = `/api/runs/${run.id}`;
     response
       .status(reused && run.status === 'done' ? 200 : 202)
@@ -127,7 +123,8 @@ export function runRoutes(deps: RunRouteDependencies): Router {
       'Content-Length': String(file.bytes),
       ETag: `"${file.sha256}"`,
       'Cache-Control': 'private, max-age=31536000, immutable',
-      'Content-Disposition': `inline; filename="${name}"`,
+      // A download when opened as a page; a fetch, an <img> or the map's reader ignore it.
+      'Content-Disposition': `attachment; filename="${name}"`,
     });
     if (request.fresh) {
       response.status(304).end();
@@ -148,8 +145,9 @@ export function runJson(run: RunRecord): z.input<typeof import('../apiSchemas.ts
     scenarioId: run.scenarioId,
     revision: run.revision,
     checksum: run.checksum,
-    kind: run.kind as 'scenario',
+    kind: run.kind as RunKind,
     mode: run.options.mode as 'grid' | 'gaussian',
+    options: run.options,
     status: run.status,
     progress: run.progress,
     message: run.message,
@@ -159,6 +157,66 @@ export function runJson(run: RunRecord): z.input<typeof import('../apiSchemas.ts
     finishedAt: run.finishedAt,
     results: run.results.map((file) => ({ ...file, url: `/api/runs/${run.id}/results/${file.name}` })),
   };
+}
+
+/**
+ * Read a POST /api/runs body: its kind (default "scenario") picks the schema; a comparison's sides
+ * given as runs are resolved to the scenario revisions they ran.
+ * @throws ApiError 400 naming the field; NotFoundError, RunRefusedError for a side's run
+ */
+export function submitRequestOf(body: unknown, manager: RunManager, client: string): SubmitRequest {
+  const kindValue = body !== null && typeof body === 'object' && !Array.isArray(body) ? (body as { kind?: unknown }).kind : undefined;
+  const kind = kindValue === undefined ? 'scenario' : kindValue;
+  if (typeof kind !== 'string' || !(RUN_KINDS as readonly string[]).includes(kind)) {
+    throw badRequest('kind', kind, `one of ${RUN_KINDS.map((name) => JSON.stringify(name)).join(', ')}`);
+  }
+  switch (kind as RunKind) {
+    case 'scenario': {
+      const parsed = parseRequest(runRequestSchema, body);
+      const { kind: _kind, scenarioId, revision, mode, ...options } = parsed;
+      return { kind: 'scenario', scenarioId, revision, mode, options, client };
+    }
+    case 'compare': {
+      const parsed = parseRequest(compareRequestSchema, body);
+      checkLevels(parsed.levels_ug_m3, 'levels_ug_m3');
+      const side = (given: z.output<typeof compareRequestSchema>['a'], name: 'a' | 'b'): ResolvedSide => {
+        if ((given.scenarioId === undefined) === (given.runId === undefined)) {
+          throw badRequest(name, given, '{scenarioId, revision?} or {runId}', `${name}: give either scenarioId (with an optional revision) or runId`);
+        }
+        if (given.runId !== undefined) {
+          if (given.revision !== undefined) throw badRequest(`${name}.revision`, given.revision, 'no revision with runId (the run names its revision)');
+          return manager.resolveRunSide(given.runId, name);
+        }
+        return { scenarioId: given.scenarioId as string, revision: given.revision, mode: parsed.mode };
+      };
+      const a = side(parsed.a, 'a');
+      const b = side(parsed.b, 'b');
+      return {
+        kind: 'compare',
+        scenarioId: a.scenarioId,
+        revision: a.revision,
+        mode: a.mode,
+        firstRunId: a.runId,
+        second: b,
+        options: parsed.levels_ug_m3 !== undefined ? { levels_ug_m3: parsed.levels_ug_m3 } : {},
+        client,
+      };
+    }
+    case 'sweep':
+    case 'stack-height':
+    case 'site': {
+      const parsed = parseRequest(RUN_REQUEST_SCHEMAS[kind as 'sweep' | 'stack-height' | 'site'], body) as Record<string, unknown> & { scenarioId: string; revision?: number; mode?: SolverMode };
+      const { kind: _kind, scenarioId, revision, mode, ...options } = parsed;
+      if (kind === 'site') checkLevels(options.levels_ug_m3 as number[] | undefined, 'levels_ug_m3');
+      return { kind: kind as RunKind, scenarioId, revision, mode, options, client };
+    }
+  }
+}
+
+function checkLevels(levels: number[] | undefined, field: string): void {
+  levels?.forEach((level, index) => {
+    if (index > 0 && !(level > levels[index - 1])) throw badRequest(`${field}[${index}]`, level, `a level above ${levels[index - 1]} (levels increase)`);
+  });
 }
 
 /** The run, which must be done (409 otherwise). */

@@ -1,11 +1,14 @@
 /**
  * POST /api/validate: check a scenario without saving or running it. A scenario with issues is a
  * successful check (200, `valid: false` and every issue with its field); only a malformed request is
- * an error. A valid one reports the grid a run would use.
+ * an error. A valid one reports the grid a run would use and the plausibility warnings (flue gas colder
+ * than the air, a mixing height below a stack, a receptor on the site...): the very ones
+ * `plumeplan validate` prints and a run records in summary.json's inputWarnings, from the same function.
  */
 import { Router } from 'express';
 import { parseScenario, type ScenarioIssue } from '../../../scenarios/format/schema.ts';
 import { GRID_ARRAYS_PER_CELL, estimateGridMemory_bytes } from '../../../solver/grid/domainDefaults.ts';
+import type { InputWarning } from '../../../solver/diagnostics/plausibility.ts';
 import { examineScenarioGeometry } from '../../scenarioFiles/semantics.ts';
 import { parseRequest, scenarioEnvelopeSchema } from '../apiSchemas.ts';
 import { ApiError, echoValue } from '../errors.ts';
@@ -28,9 +31,11 @@ export function validateRoutes(maxCellsPerRun: number): Router {
       else issues.push({ path: error.body.field?.replace(/^scenario\.?/, '') || '(scenario)', value: error.body.value, message: error.body.allowed ?? error.body.error });
     }
     let grid = null;
+    let warnings: InputWarning[] = [];
     if (parsed !== null) {
       const examination = examineScenarioGeometry(parsed);
       issues.push(...examination.issues);
+      warnings = examination.warnings;
       if (examination.geometry !== null) {
         const { grid: localGrid, domain, domainDerived } = examination.geometry;
         const memory = estimateGridMemory_bytes(domain);
@@ -60,6 +65,7 @@ export function validateRoutes(maxCellsPerRun: number): Router {
         allowed: issue.message,
       })),
       grid,
+      warnings: warnings.map((warning) => ({ field: `scenario.${warning.path}`, value: echoValue(warning.value), message: warning.message })),
     });
   });
   return router;

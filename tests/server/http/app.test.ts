@@ -105,9 +105,11 @@ describe('the app', () => {
       const answer = await request(server.app)[method.toLowerCase() as 'get'](url).set('Content-Type', 'application/json').send(method === 'GET' || method === 'DELETE' ? undefined : '{}');
       expect(answer.body?.field, `${route} is routed`).not.toBe('path');
     }
-    // The run request schema is the one the route checks with: its fields and the mode's choices.
-    const runRequest = document.components.schemas.RunRequest;
-    expect(Object.keys(runRequest.properties).sort()).toEqual(['kind', 'mode', 'revision', 'scenarioId']);
+    // The run request schema is the one the route checks with: one body per kind; a scenario run's
+    // fields and the mode's choices.
+    expect(document.components.schemas.RunRequest.oneOf).toHaveLength(5);
+    const runRequest = document.components.schemas.ScenarioRunRequest;
+    expect(Object.keys(runRequest.properties).sort()).toEqual(['contextLayers', 'crs', 'kind', 'mode', 'pack', 'revision', 'scenarioId']);
     expect(runRequest.properties.mode.enum).toEqual(['grid', 'gaussian']);
     expect(runRequest.additionalProperties).toBe(false);
     expect(document.components.schemas.Scenario.properties.sources).toBeDefined();
