@@ -11,7 +11,7 @@ import demoScenario from '../scenarios/merrowdene-heat-plant/scenario.json';
 import { parseScenario } from '../scenarios/format/schema.ts';
 import { ColourScale, DifferenceScale } from './colour/colourScale.ts';
 import { defaultColourRange, isoplethLevels } from './colour/legendLevels.ts';
-import { EditLayer, type Tool } from './editing/editLayer.ts';
+import { EditLayer, KEY_STEP_LARGE_m, KEY_STEP_m, type Tool } from './editing/editLayer.ts';
 import { largestDifference } from './field/compare.ts';
 import { valueAt, type GroundField } from './field/groundField.ts';
 import { ConditionsPanel } from './forms/conditionsPanel.ts';
@@ -137,7 +137,7 @@ async function start(): Promise<void> {
         height_m: field.height_m,
         isopleths_ug_m3: levels,
       });
-      results.setAreas(field, levels);
+      results.setAreas(field, levels, placesInFrame());
     }
     readout.setProbe({
       valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null),
@@ -145,6 +145,24 @@ async function start(): Promise<void> {
       standard: chosenStandard(),
     });
     window.dispatchEvent(new CustomEvent(FIELD_DRAWN_EVENT, { detail: { origin: field.origin } }));
+  }
+
+  /** Sources (stacks; areas by their first corner) and receptors in local metres, for the footprint areas. */
+  function placesInFrame(): { sources: { id: string; x_m: number; y_m: number }[]; receptors: { id: string; name: string; x_m: number; y_m: number }[] } {
+    const view = doc.view as { sources?: { id?: string; lat?: number; lon?: number; polygon?: [number, number][] }[]; receptors?: { id?: string; name?: string; lat?: number; lon?: number }[] };
+    const local = (lon: number, lat: number) => frame.projection.toLocal(lon, lat);
+    const sources = (view.sources ?? []).flatMap((s) => {
+      const at = typeof s.lat === 'number' && typeof s.lon === 'number' ? [s.lon, s.lat] : Array.isArray(s.polygon) && s.polygon.length > 0 ? s.polygon[0] : null;
+      if (at === null || typeof s.id !== 'string') return [];
+      const [x_m, y_m] = local(at[0], at[1]);
+      return [{ id: s.id, x_m, y_m }];
+    });
+    const receptors = (view.receptors ?? []).flatMap((r) => {
+      if (typeof r.lat !== 'number' || typeof r.lon !== 'number' || typeof r.id !== 'string') return [];
+      const [x_m, y_m] = local(r.lon, r.lat);
+      return [{ id: r.id, name: r.name ?? r.id, x_m, y_m }];
+    });
+    return { sources, receptors };
   }
 
   function chosenStandard(): { name: string; limit_ug_m3: number } | null {
@@ -162,7 +180,7 @@ async function start(): Promise<void> {
       `Gaussian preview of ${r.weatherLabel}; peak ${r.peak.value_ug_m3.toPrecision(3)} µg/m³; ${r.grid.nx} × ${r.grid.ny} cells of ${r.grid.spacing_m} m${r.coarsened ? ' (coarsened for speed)' : ''}; ${Math.round(answer.roundTrip_ms)} ms`,
       false,
     );
-    results.setPreviewReceptors(r.receptors_ug_m3);
+    results.setPreviewReceptors(r.receptors_ug_m3, r.peak);
     // The bench reads these (tests/bench/mapPage.ts): request-to-answer and the worker's own time.
     (window as unknown as { plumeplanPreviewTimes?: { roundTrip_ms: number; compute_ms: number }[] }).plumeplanPreviewTimes?.push({ roundTrip_ms: answer.roundTrip_ms, compute_ms: r.compute_ms });
     if (results.showsPreview) {
@@ -176,7 +194,19 @@ async function start(): Promise<void> {
   };
 
   // --- editing -----------------------------------------------------------------------------------
-  const editLayer = new EditLayer(map, doc, (scenario) => requestPreview(scenario));
+  const announcer = byId('map-announcer');
+  byId('marker-keys-hint').textContent = `Arrow keys move this symbol ${KEY_STEP_m} m east, west, north or south; with Shift ${KEY_STEP_LARGE_m} m. Delete removes it.`;
+  const editLayer = new EditLayer(
+    map,
+    doc,
+    (scenario) => requestPreview(scenario),
+    () => frame,
+    (text) => {
+      // a fresh text each time, so a repeated move is announced again
+      announcer.textContent = '';
+      window.setTimeout(() => (announcer.textContent = text), 30);
+    },
+  );
   new ObjectPanel(byId('panel-objects'), doc, editLayer);
   new ConditionsPanel(byId('panel-conditions'), doc);
   new LibraryPanel(byId('panel-library'), doc, api, results);
@@ -211,7 +241,7 @@ async function start(): Promise<void> {
   const hint = byId('tool-hint');
   const toolButtons = Array.from(document.querySelectorAll<HTMLButtonElement>('.toolstrip button[data-tool]'));
   const hints: Record<Tool, string> = {
-    select: 'Drag to pan; click a symbol to select it.',
+    select: `Drag to pan; click a symbol to select it. With the keyboard: Tab to a symbol, arrow keys move it ${KEY_STEP_m} m (Shift: ${KEY_STEP_LARGE_m} m).`,
     stack: 'Click on the map to place the stack (Enter places it at the map centre).',
     receptor: 'Click on the map to place the receptor (Enter places it at the map centre).',
     area: 'Click the corners of the area; click the first corner to finish.',

@@ -166,6 +166,11 @@ export class ApiClient {
     return () => source.close();
   }
 
+  /** A finished run's assessment figures: `{ id, revision, assessment, peak, caution }` (docs/http-api.md). */
+  getAssessment(id: string): Promise<{ id: string; revision: number; assessment: unknown; peak: unknown; caution: string; verdicts?: unknown }> {
+    return this.request('GET', `/api/runs/${encodeURIComponent(id)}/assessment`);
+  }
+
   async resultBytes(file: ResultFile): Promise<ArrayBuffer> {
     const response = await fetch(`${this.base}${file.url}`);
     if (!response.ok) throw new ApiError(response.status, { error: `${file.name}: HTTP ${response.status}`, field: 'name', value: file.name });

@@ -12,8 +12,11 @@ import L from 'leaflet';
 import '@geoman-io/leaflet-geoman-free';
 import type { RawScenario, ScenarioDocument } from '../state/scenarioDocument.ts';
 import { escapeHtml } from '../map/mapControls.ts';
+import { keyMove, moveAnnouncement, type FrameLike } from './keyMove.ts';
 
 export type Tool = 'select' | 'stack' | 'receptor' | 'area';
+
+export { KEY_STEP_m, KEY_STEP_LARGE_m, keyMove, moveAnnouncement, type FrameLike } from './keyMove.ts';
 
 /** What is selected: a source or receptor by its index in the scenario's list. */
 export type Selection = { list: 'sources' | 'receptors'; index: number } | null;
@@ -76,10 +79,17 @@ export class EditLayer {
   private readonly selectionListeners = new Set<(selection: Selection) => void>();
   private readonly toolListeners = new Set<(tool: Tool) => void>();
 
+  /** the marker to give the keyboard focus back to after the redraw an edit causes */
+  private refocus: { list: 'sources' | 'receptors'; index: number } | null = null;
+
   constructor(
     private readonly map: L.Map,
     private readonly document: ScenarioDocument,
     private readonly onDragPreview: (scenario: RawScenario) => void,
+    /** the map's current local frame (it changes with the site) */
+    private readonly frameOf: () => FrameLike | null = () => null,
+    /** tell screen readers what happened (a polite live region) */
+    private readonly announce: (text: string) => void = () => undefined,
   ) {
     this.group.addTo(map);
     map.pm.setGlobalOptions({ allowSelfIntersection: false, snappable: false } as never);
@@ -264,7 +274,36 @@ export class EditLayer {
     const element = marker.getElement();
     if (element) {
       element.dataset.testid = `${list === 'sources' ? 'source' : 'receptor'}-marker-${item.id ?? index}`;
+      const kind = list === 'sources' ? 'Stack' : 'Receptor';
+      element.setAttribute('aria-label', `${kind} ${item.name ?? item.id ?? ''}`);
+      element.setAttribute('aria-describedby', 'marker-keys-hint');
+      element.setAttribute('aria-keyshortcuts', 'ArrowUp ArrowDown ArrowLeft ArrowRight Shift+ArrowUp Shift+ArrowDown Shift+ArrowLeft Shift+ArrowRight Delete');
+      element.addEventListener('keydown', (event) => this.onMarkerKey(event, list, index, item, kind));
+      if (this.refocus !== null && this.refocus.list === list && this.refocus.index === index) {
+        this.refocus = null;
+        element.focus();
+      }
     }
+  }
+
+  /** Arrow keys on a focused stack or receptor: select it and move it by the stated step. */
+  private onMarkerKey(event: KeyboardEvent, list: 'sources' | 'receptors', index: number, item: RawSource | RawReceptor, kind: string): void {
+    const frame = this.frameOf();
+    if (frame === null || typeof item.lat !== 'number' || typeof item.lon !== 'number') return;
+    const moved = keyMove(event.key, event.shiftKey, { lat: item.lat, lon: item.lon }, frame);
+    if (moved === null) return;
+    // the map would pan on the same keys: this key is the marker's
+    event.preventDefault();
+    event.stopPropagation();
+    this.selection = { list, index };
+    this.refocus = { list, index };
+    this.document.edit(`move ${kind.toLowerCase()} ${item.id ?? ''} by keyboard`, (draft) => {
+      const target = (draft[list] as Record<string, unknown>[])[index];
+      target.lat = moved.lat;
+      target.lon = moved.lon;
+    });
+    for (const listener of this.selectionListeners) listener(this.selection);
+    this.announce(moveAnnouncement(kind, item.name ?? item.id ?? '', moved.dx_m, moved.dy_m, moved.x_m, moved.y_m));
   }
 }
 

@@ -3,10 +3,28 @@
  * read, or a wind-rose table), domain and solver, and the assessment's background and standards. Each
  * group says in one line what it changes.
  */
-import { parseWeatherCsv } from '../../scenarios/format/weatherCsv.ts';
-import { escapeHtml } from '../map/mapControls.ts';
+import { hoursSummary, readWeatherUpload } from './weatherUpload.ts';
+import { escapeHtml } from '../map/escapeHtml.ts';
 import type { RawScenario, ScenarioDocument } from '../state/scenarioDocument.ts';
 import { choiceField, fieldGroup, numberField, showIssues, textField } from './formKit.ts';
+import type { LibraryPollutant } from '../../scenarios/format/types.ts';
+import {
+  chooseLibraryPollutant,
+  chosenLibraryPollutant,
+  chosenStandards,
+  LIBRARY_POLLUTANTS,
+  libraryLosses,
+  noxRatios,
+  SCREENING_SET_DEFAULT,
+  SCREENING_SET_ORIGIN,
+  screeningStateCount,
+  setNoxRatio,
+  setsWithStandards,
+  STANDARD_SET_TITLES,
+  STANDARD_SETS,
+  toggleStandardSet,
+  useLibraryLoss,
+} from './libraryChoice.ts';
 
 type Obj = Record<string, unknown>;
 
@@ -21,6 +39,14 @@ const STABILITY_CHOICES = [
 
 /** The steady weather a new or converted scenario starts from (neutral, 5 m/s from the west-south-west). */
 const STEADY_DEFAULT = { kind: 'steady', windSpeed_m_s: 5, windFrom_deg: 250, stability: 'D', rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10 };
+
+/** What each kind of weather changes, in one line (shown under the choice). */
+const WEATHER_KIND_HINTS: Record<string, string> = {
+  steady: 'one hour of one weather: the picture of that hour; standards over a day or a year cannot be judged from it',
+  hourly: 'every hour of your series: means, percentiles and exceedances exactly as the standards define them',
+  windRose: 'how often each wind blows: long-term means; no time order, so no daily or hourly percentiles',
+  screeningSet: 'every class and speed from every direction: the worst hour, an upper bound that screens out without met data',
+};
 
 /** A wind-rose row as the table's text holds it. */
 const ROSE_HEADER = 'windFrom_deg,windSpeed_m_s,stability,frequency';
@@ -105,13 +131,127 @@ export class ConditionsPanel {
         const current = (target.washout as Obj | null) ?? { a_per_s: 0, b: 0.8 };
         target.washout = { ...current, [field]: value };
       });
-    return fieldGroup('Pollutant', 'What is emitted and how it is lost on the way: decay shortens the footprint downwind, washout matters only in rain, deposition thins a low plume.', [
+    const chosen = chosenLibraryPollutant(view);
+    const children: HTMLElement[] = [
+      choiceField({
+        issuePath: 'assessment.libraryPollutant',
+        label: 'From the library',
+        value: chosen ?? '',
+        choices: [
+          { value: '', label: 'None: my own pollutant and standards' },
+          ...LIBRARY_POLLUTANTS.map((name) => ({ value: name, label: `${name}: ${libraryLosses(name).description}` })),
+        ],
+        hint: 'a library pollutant brings its air-quality standards into the verdicts and offers loss values from the literature',
+        onChange: (value) => {
+          this.set('library pollutant', (draft) => chooseLibraryPollutant(draft, value === '' ? null : (value as LibraryPollutant)));
+          this.render();
+        },
+      }),
+    ];
+    if (chosen !== null) children.push(this.libraryDetails(view, chosen));
+    children.push(
       textField({ issuePath: 'pollutant.name', label: 'Name', value: pollutant.name, hint: 'shown in reports', onChange: setP('name') }),
       numberField({ schemaPath: ['pollutant', 'halfLife_h'], issuePath: 'pollutant.halfLife_h', label: 'Half-life', value: pollutant.halfLife_h, nullable: true, emptyMeaning: 'conserved (no decay)', onChange: setP('halfLife_h') }),
       numberField({ schemaPath: ['pollutant', 'washout', 'a_per_s'], issuePath: 'pollutant.washout.a_per_s', label: 'Washout coefficient a', value: washout?.a_per_s, nullable: true, emptyMeaning: 'no washout', onChange: setWashout('a_per_s') }),
       numberField({ schemaPath: ['pollutant', 'washout', 'b'], issuePath: 'pollutant.washout.b', label: 'Washout exponent b', value: washout?.b, nullable: true, emptyMeaning: 'no washout', onChange: setWashout('b') }),
       numberField({ schemaPath: ['pollutant', 'depositionVelocity_m_s'], issuePath: 'pollutant.depositionVelocity_m_s', label: 'Dry deposition velocity', value: pollutant.depositionVelocity_m_s ?? 0, onChange: setP('depositionVelocity_m_s') }),
-    ]);
+    );
+    return fieldGroup('Pollutant', 'What is emitted and how it is lost on the way: decay shortens the footprint downwind, washout matters only in rain, deposition thins a low plume.', children);
+  }
+
+  /** What the library holds for the chosen pollutant: losses with their sources, standards, NOx ratios. */
+  private libraryDetails(view: RawScenario, name: LibraryPollutant): HTMLElement {
+    const box = document.createElement('div');
+    box.className = 'library-card';
+    box.dataset.testid = 'library-card';
+    const losses = libraryLosses(name);
+    const pollutant = (view.pollutant as Obj | undefined) ?? {};
+    const currentWashout = pollutant.washout as { a_per_s?: number; b?: number } | null | undefined;
+    const washoutInUse = losses.washout !== null && currentWashout?.a_per_s === losses.washout.a_per_s && currentWashout?.b === losses.washout.b;
+    const depositionInUse = losses.depositionVelocity !== null && pollutant.depositionVelocity_m_s === losses.depositionVelocity.value_m_s;
+    const standards = chosenStandards(view);
+    const sets = setsWithStandards(name);
+    const takenSets = new Set(((view.assessment as Obj | undefined)?.standardSets as string[] | undefined) ?? STANDARD_SETS);
+    box.innerHTML =
+      `<h3>${escapeHtml(name)} in the library</h3>` +
+      '<dl class="library-facts">' +
+      `<dt>Half-life</dt><dd>${escapeHtml(losses.halfLife)}</dd>` +
+      `<dt>Washout</dt><dd>${
+        losses.washout
+          ? `Λ = a R<sup>b</sup> with a = ${losses.washout.a_per_s.toExponential(1)} s⁻¹, b = ${losses.washout.b} <span class="source">${escapeHtml(losses.washout.source)}</span> ` +
+            (washoutInUse ? '<span class="in-use">in use</span>' : '<button type="button" class="small" data-use="washout">Use these</button>')
+          : 'none suggested: no washout unless you give one'
+      }</dd>` +
+      `<dt>Dry deposition</dt><dd>${
+        losses.depositionVelocity
+          ? `${losses.depositionVelocity.value_m_s} m/s <span class="source">${escapeHtml(losses.depositionVelocity.source)}</span> ` +
+            (depositionInUse ? '<span class="in-use">in use</span>' : '<button type="button" class="small" data-use="deposition">Use this</button>')
+          : 'none suggested: the velocity below applies'
+      }</dd></dl>`;
+    for (const button of Array.from(box.querySelectorAll<HTMLButtonElement>('button[data-use]'))) {
+      const which = button.dataset.use as 'washout' | 'deposition';
+      button.setAttribute('aria-label', which === 'washout' ? `Use the library's washout for ${name}` : `Use the library's deposition velocity for ${name}`);
+      button.addEventListener('click', () => {
+        this.set(`library ${which}`, (draft) => useLibraryLoss(draft, name, which));
+        this.render();
+      });
+    }
+    if (sets.length > 1) {
+      const fieldset = document.createElement('fieldset');
+      fieldset.className = 'set-choice';
+      fieldset.innerHTML = '<legend>Standards from</legend>';
+      for (const set of sets) {
+        const label = document.createElement('label');
+        const input = document.createElement('input');
+        input.type = 'checkbox';
+        input.checked = takenSets.has(set);
+        input.addEventListener('change', () => {
+          this.set('standard sets', (draft) => toggleStandardSet(draft, set, input.checked));
+          this.render();
+        });
+        label.append(input, ` ${STANDARD_SET_TITLES[set]}`);
+        fieldset.append(label);
+      }
+      box.append(fieldset);
+    }
+    const table = document.createElement('details');
+    table.className = 'library-standards-box';
+    table.innerHTML =
+      `<summary>${standards.length} library standard${standards.length === 1 ? '' : 's'} the verdicts use</summary>` +
+      (standards.length === 0
+        ? '<p class="muted">No library standard from the sets ticked.</p>'
+        : '<table class="mini library-standards"><caption class="visually-hidden">Library standards with their sources</caption><thead><tr><th scope="col">standard</th><th scope="col">limit [µg/m³]</th><th scope="col">allowed a year</th></tr></thead><tbody>' +
+          standards
+            .map(
+              (s) =>
+                `<tr><td>${escapeHtml(s.name)}<span class="source">${escapeHtml(s.kind)}; ${escapeHtml(s.source)}</span></td><td>${s.limit_ug_m3}</td><td>${s.allowedExceedances}</td></tr>`,
+            )
+            .join('') +
+          '</tbody></table>');
+    box.append(table);
+    if (name === 'NOx') {
+      const ratios = noxRatios(view);
+      const ratioBox = document.createElement('div');
+      ratioBox.className = 'nox-ratios';
+      ratioBox.innerHTML = `<p class="explain">NOx is emitted, NO2 is assessed: the process contribution is multiplied by these shares. <span class="source">${escapeHtml(ratios.source)}</span></p>`;
+      ratioBox.append(
+        numberField({ schemaPath: ['assessment', 'noxToNo2', 'longTerm'], issuePath: 'assessment.noxToNo2.longTerm', label: 'NO2 share of NOx, long-term', value: ratios.longTerm, onChange: (value) => this.set('NOx ratio long-term', (draft) => setNoxRatio(draft, 'longTerm', value)) }),
+        numberField({ schemaPath: ['assessment', 'noxToNo2', 'shortTerm'], issuePath: 'assessment.noxToNo2.shortTerm', label: 'NO2 share of NOx, short-term', value: ratios.shortTerm, onChange: (value) => this.set('NOx ratio short-term', (draft) => setNoxRatio(draft, 'shortTerm', value)) }),
+      );
+      if (ratios.own) {
+        const reset = document.createElement('button');
+        reset.type = 'button';
+        reset.className = 'small';
+        reset.textContent = 'Back to the default shares';
+        reset.addEventListener('click', () => {
+          this.set('NOx ratios default', (draft) => setNoxRatio(draft, 'longTerm', null));
+          this.render();
+        });
+        ratioBox.append(reset);
+      }
+      box.append(ratioBox);
+    }
+    return box;
   }
 
   private weatherGroup(view: RawScenario): HTMLElement {
@@ -126,14 +266,19 @@ export class ConditionsPanel {
           { value: 'steady', label: 'One steady state' },
           { value: 'hourly', label: 'Hourly series (CSV upload)' },
           { value: 'windRose', label: 'Wind rose table' },
+          { value: 'screeningSet', label: 'Screening weather set (no met data needed)' },
         ],
-        hint: 'one state gives one hour\'s picture; a series or a rose gives means and the statistics standards ask for',
-        onChange: (value) => this.set('weather kind', (draft) => {
-          if (value === 'steady') draft.weather = { ...STEADY_DEFAULT };
-          else if (value === 'hourly') draft.weather = { kind: 'hourly', hours: [{ time: '2026-01-01T00:00Z', windSpeed_m_s: 5, windFrom_deg: 250, stability: 'D' }] };
-          else draft.weather = { kind: 'windRose', sectorWidth_deg: 30, cells: [{ windFrom_deg: 240, windSpeed_m_s: 5, stability: 'D', frequency: 1 }], rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10 };
+        hint: WEATHER_KIND_HINTS[kind] ?? '',
+        onChange: (value) => {
+          this.set('weather kind', (draft) => {
+            if (value === 'steady') draft.weather = { ...STEADY_DEFAULT };
+            else if (value === 'screeningSet') draft.weather = { ...SCREENING_SET_DEFAULT };
+            else if (value === 'hourly') draft.weather = { kind: 'hourly', hours: [{ time: '2026-01-01T00:00Z', windSpeed_m_s: 5, windFrom_deg: 250, stability: 'D' }] };
+            else draft.weather = { kind: 'windRose', sectorWidth_deg: 30, cells: [{ windFrom_deg: 240, windSpeed_m_s: 5, stability: 'D', frequency: 1 }], rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10 };
+          });
+          // after the edit (the form of the new kind reads the edited scenario)
           this.render();
-        }),
+        },
       }),
     ];
     const setW = (field: string) => (value: unknown) =>
@@ -156,6 +301,24 @@ export class ConditionsPanel {
       );
     } else if (kind === 'hourly') {
       children.push(this.csvUpload(weather));
+    } else if (kind === 'screeningSet') {
+      const sectors = typeof weather.sectors === 'number' ? weather.sectors : SCREENING_SET_DEFAULT.sectors;
+      const { pairs, states } = screeningStateCount(sectors);
+      const about = document.createElement('div');
+      about.className = 'set-about';
+      about.dataset.testid = 'screening-set-about';
+      about.innerHTML =
+        `<p>${pairs} stability-class and wind-speed pairs from each of ${sectors} directions: ${states} steady states, one run. ` +
+        'The result is the highest hourly process contribution at each place, an upper bound of every annual mean and percentile: ' +
+        'a pass on it is a pass; a fail means an hourly series is needed to decide.</p>' +
+        `<p class="source">${escapeHtml(SCREENING_SET_ORIGIN)}</p>`;
+      children.push(
+        about,
+        w('sectors', 'Direction sectors', { step: '1' }),
+        w('rain_mm_h', 'Rain rate'),
+        w('airTemperature_K', 'Air temperature'),
+        w('anemometerHeight_m', 'Anemometer height'),
+      );
     } else {
       children.push(w('sectorWidth_deg', 'Sector width'), this.roseTable(weather), w('rain_mm_h', 'Rain rate'), w('airTemperature_K', 'Air temperature'), w('anemometerHeight_m', 'Anemometer height'));
     }
@@ -177,17 +340,17 @@ export class ConditionsPanel {
     input.addEventListener('change', async () => {
       const file = input.files?.[0];
       if (!file) return;
-      const text = await file.text();
-      const outcome = parseWeatherCsv(text, file.name);
+      const read = readWeatherUpload(await file.text(), file.name);
       const errorSlot = wrapper.querySelector('.error') as HTMLElement;
-      if (!outcome.ok) {
-        errorSlot.textContent = outcome.issues.slice(0, 5).map((i) => `${i.path}: ${i.message}`).join('\n') + (outcome.issues.length > 5 ? `\n… and ${outcome.issues.length - 5} more` : '');
+      if (!read.ok) {
+        errorSlot.textContent = read.errorText;
         return;
       }
       errorSlot.textContent = '';
-      this.csvSummary = `<p>Read ${outcome.hours.length} hours from <b>${escapeHtml(file.name)}</b>.</p>` + hoursSummary(outcome.hours as unknown as Obj[]);
+      this.csvSummary = read.summaryHtml;
+      const hoursRead = read.hours;
       this.set('weather hourly series', (draft) => {
-        draft.weather = { kind: 'hourly', hours: outcome.hours };
+        draft.weather = { kind: 'hourly', hours: hoursRead };
       });
       this.render();
     });
@@ -349,15 +512,4 @@ export class ConditionsPanel {
     }
     return fieldGroup('Background and standards', 'The process contribution is added to the background and compared with each standard\'s limit.', children);
   }
-}
-
-function hoursSummary(hours: Obj[]): string {
-  if (hours.length === 0) return '<p class="muted">No hours yet.</p>';
-  const rows = hours.slice(0, 4);
-  return (
-    `<p>${hours.length} hours, ${escapeHtml(String(hours[0].time))} to ${escapeHtml(String(hours[hours.length - 1].time))}.</p>` +
-    '<table class="mini"><caption class="visually-hidden">First hours read</caption><thead><tr><th scope="col">time</th><th scope="col">speed [m/s]</th><th scope="col">from [°]</th><th scope="col">class</th></tr></thead><tbody>' +
-    rows.map((h) => `<tr><td>${escapeHtml(String(h.time))}</td><td>${h.windSpeed_m_s}</td><td>${h.windFrom_deg}</td><td>${escapeHtml(String(h.stability ?? '(derived)'))}</td></tr>`).join('') +
-    '</tbody></table>'
-  );
 }

@@ -6,7 +6,7 @@
  */
 import jsonSchema from '../../scenarios/format/scenario.schema.json';
 import type { ScenarioIssue } from '../../scenarios/format/schema.ts';
-import { escapeHtml } from '../map/mapControls.ts';
+import { escapeHtml } from '../map/escapeHtml.ts';
 
 type SchemaNode = {
   type?: string | string[];

@@ -3,6 +3,7 @@
  * the value of the field on show under the pointer with its share of the chosen standard).
  */
 import L from 'leaflet';
+import { escapeHtml } from './escapeHtml.ts';
 import { formatConcentration } from '../colour/legendLevels.ts';
 import { formatDegrees, formatMetres, type LocalFrame } from './localFrame.ts';
 
@@ -107,7 +108,4 @@ export function formatShare(ratio: number): string {
   return percent > 0 ? '< 0.1 %' : '0 %';
 }
 
-/** Escape text for insertion into HTML. */
-export function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] as string);
-}
+export { escapeHtml };

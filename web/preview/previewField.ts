@@ -122,6 +122,9 @@ export function computePreview(scenario: Scenario, options: PreviewOptions = {})
   };
 }
 
+/** Direction the screening set's preview state blows from [deg]: west, the prevailing wind of many mid-latitude sites. */
+const SCREENING_PREVIEW_FROM_deg = 270;
+
 /** The one weather state a preview shows, its field path for messages, and its label. */
 function previewWeather(scenario: Scenario, hourIndex: number): { fields: WeatherFields & { time?: string }; path: string; label: string } {
   const weather = scenario.weather;
@@ -153,6 +156,24 @@ function previewWeather(scenario: Scenario, hourIndex: number): { fields: Weathe
         },
         path: `weather.cells[${most}]`,
         label: `the wind rose's most frequent cell (${fmt(100 * cell.frequency)} % of the time)`,
+      };
+    }
+    case 'screeningSet': {
+      // The set has no one state; the preview shows a common one of them (class D at 5 m/s, from the
+      // sector nearest west), and says so: the run takes the highest of all the set's states.
+      const sectorWidth = 360 / weather.sectors;
+      const windFrom_deg = (Math.round(SCREENING_PREVIEW_FROM_deg / sectorWidth) * sectorWidth) % 360;
+      return {
+        fields: {
+          windSpeed_m_s: 5,
+          windFrom_deg,
+          stability: 'D',
+          rain_mm_h: weather.rain_mm_h,
+          airTemperature_K: weather.airTemperature_K,
+          anemometerHeight_m: weather.anemometerHeight_m,
+        },
+        path: 'weather',
+        label: 'one state of the screening weather set (the run takes the highest of all)',
       };
     }
     default:

@@ -7,8 +7,13 @@
 import { SCREENING_CAUTION } from '../../server/writers/caution.ts';
 import { formatConcentration } from '../colour/legendLevels.ts';
 import { differenceField, receptorDeltas, type ReceptorFigures } from '../field/compare.ts';
-import { decodeGroundField, areasAtOrAbove, type GroundField } from '../field/groundField.ts';
-import { escapeHtml, formatShare } from '../map/mapControls.ts';
+import { decodeGroundField, type GroundField } from '../field/groundField.ts';
+import { levelAreas, type NamedPoint } from '../../solver/assessment/footprintAreas.ts';
+import { assessmentPlan, type AssessedStandard } from '../../solver/assessment/standards.ts';
+import { DEFAULT_SCREENING_THRESHOLDS } from '../../solver/assessment/standards.ts';
+import { SCREENING_LABEL } from '../../solver/assessment/verdicts.ts';
+import { areasTableHtml, outcomeKeyHtml, previewVerdicts, thresholdsLine, verdictTableHtml, type VerdictSet } from './verdictTable.ts';
+import { escapeHtml } from '../map/mapControls.ts';
 import type { ScenarioDocument } from '../state/scenarioDocument.ts';
 import { ApiClient, ApiError, FINAL_RUN_STATUSES, type RunRecord, type RunUpdate } from '../api/client.ts';
 import { renderLegend, type LegendContent } from './legend.ts';
@@ -29,6 +34,7 @@ interface SummaryReceptor {
 
 interface RunSummary {
   receptors?: SummaryReceptor[];
+  verdicts?: VerdictSet;
   peak?: { concentration_ug_m3?: number; x_m?: number; y_m?: number };
   notes?: string[];
   weatherKind?: string;
@@ -46,6 +52,9 @@ const FILE_LABELS: Record<string, string> = {
 export class ResultsPanel {
   private readonly root: HTMLElement;
   private previewReceptors: number[] | null = null;
+  private previewPeak: { value_ug_m3: number; x_m: number; y_m: number } | null = null;
+  /** the run's screening verdicts (summary.json), or null without an assessment */
+  private runVerdicts: VerdictSet | null = null;
   private runReceptors: { columns: string[]; rows: SummaryReceptor[] } | null = null;
   private run: RunRecord | null = null;
   private stopFollowing: (() => void) | null = null;
@@ -84,9 +93,11 @@ export class ResultsPanel {
         <div class="legend" data-testid="legend"></div>
       </section>
       <section class="result-block" aria-labelledby="receptors-heading">
-        <h2 id="receptors-heading">Receptors</h2>
-        <label class="inline-field">Compare with <select data-testid="standard-choice" aria-label="Standard to compare with"></select></label>
+        <h2 id="receptors-heading">Receptors and screen</h2>
+        <label class="inline-field">Standard <select data-testid="standard-choice" aria-label="Standard to screen against"></select></label>
         <div class="receptor-table" data-testid="receptor-table"></div>
+        <p class="hint thresholds" data-testid="thresholds"></p>
+        <p class="hint outcome-key">${outcomeKeyHtml()}</p>
       </section>
       <section class="result-block" aria-labelledby="areas-heading">
         <h2 id="areas-heading">Footprint areas</h2>
@@ -114,18 +125,33 @@ export class ResultsPanel {
     return this.root.querySelector(selector) as T;
   }
 
-  /** The standard chosen for shares, if any. */
-  get chosenStandard(): { name: string; limit_ug_m3: number } | null {
+  /** The standards on offer: the run's verdicts' while a run is on show, else the scenario's plan (library and own). */
+  private standardsOnOffer(): { name: string; limit_ug_m3: number }[] {
+    if (!this.showsPreview && this.runVerdicts !== null) return this.runVerdicts.standards;
+    return this.plannedStandards();
+  }
+
+  /** The scenario's assessed standards (library and own, with their NOx to NO2 factors); [] when it has none or is invalid. */
+  private plannedStandards(): AssessedStandard[] {
     const outcome = this.doc.validation;
-    const standards = outcome.ok ? (outcome.scenario.assessment?.standards ?? []) : [];
+    if (!outcome.ok || outcome.scenario.assessment === undefined) return [];
+    try {
+      return assessmentPlan(outcome.scenario.assessment, outcome.scenario.pollutant.name).standards;
+    } catch {
+      return [];
+    }
+  }
+
+  /** The standard chosen for shares and verdicts, if any. */
+  get chosenStandard(): { name: string; limit_ug_m3: number } | null {
+    const standards = this.standardsOnOffer();
     const name = this.q<HTMLSelectElement>('[data-testid="standard-choice"]').value;
     return standards.find((s) => s.name === name) ?? standards[0] ?? null;
   }
 
   private refreshStandards(): void {
     const select = this.q<HTMLSelectElement>('[data-testid="standard-choice"]');
-    const outcome = this.doc.validation;
-    const standards = outcome.ok ? (outcome.scenario.assessment?.standards ?? []) : [];
+    const standards = this.standardsOnOffer();
     const before = select.value;
     select.innerHTML =
       standards.length === 0
@@ -153,8 +179,9 @@ export class ResultsPanel {
     element.classList.toggle('problem', problem);
   }
 
-  setPreviewReceptors(values: number[]): void {
+  setPreviewReceptors(values: number[], peak?: { value_ug_m3: number; x_m: number; y_m: number }): void {
     this.previewReceptors = values;
+    if (peak) this.previewPeak = peak;
     if (this.showsPreview) this.refreshVerdicts();
   }
 
@@ -162,74 +189,91 @@ export class ResultsPanel {
     renderLegend(this.q('[data-testid="legend"]'), content);
   }
 
-  setAreas(field: GroundField | null, levels: readonly number[]): void {
+  /**
+   * The footprint areas of the field on show, per isopleth level: area, farthest reach from the sources
+   * and receptors inside (the solver's level arithmetic, solver/assessment/footprintAreas.ts).
+   *
+   * @param places sources and receptors in local metres (from the map's frame)
+   */
+  setAreas(field: GroundField | null, levels: readonly number[], places: { sources: NamedPoint[]; receptors: (NamedPoint & { name: string })[] } = { sources: [], receptors: [] }): void {
     const element = this.q('[data-testid="areas"]');
-    if (field === null || levels.length === 0) {
-      element.innerHTML = '<p class="muted">Ground area at or above each isopleth level, once a field is on the map.</p>';
+    const positive = levels.filter((level) => Number.isFinite(level) && level > 0);
+    if (field === null || positive.length === 0) {
+      element.innerHTML = '<p class="muted">Ground area at or above each isopleth level, how far it reaches from the sources and which receptors it holds, once a field is on the map.</p>';
       return;
     }
-    const areas = areasAtOrAbove(field, levels);
-    element.innerHTML =
-      `<table class="mini"><caption>Ground at or above each level (${escapeHtml(field.origin)}; column areas, ${field.grid.spacing_m} m cells)</caption>` +
-      '<thead><tr><th scope="col">level [µg/m³]</th><th scope="col">area [ha]</th></tr></thead><tbody>' +
-      levels.map((level, k) => `<tr><td>${formatConcentration(level)}</td><td>${formatArea_ha(areas[k])}</td></tr>`).join('') +
-      '</tbody></table>';
+    const areas = levelAreas(field.values, field.grid, positive, { sources: places.sources, receptors: places.receptors });
+    element.innerHTML = areasTableHtml(areas, places.receptors, field.origin, field.grid.spacing_m);
   }
 
   private setRunStatus(text: string): void {
     this.q('[data-testid="run-status"]').textContent = text;
   }
 
-  /** Redraw the receptor table (preview values or the run's figures) with shares of the chosen standard. */
+  /**
+   * Redraw the receptor table: the screen against the chosen standard (the run's verdicts, or the
+   * preview's indicative figures), or plain concentrations when the scenario has no standard.
+   */
   refreshVerdicts(): void {
     const element = this.q('[data-testid="receptor-table"]');
+    const thresholdsElement = this.q('[data-testid="thresholds"]');
     const outcome = this.doc.validation;
-    const standard = this.chosenStandard;
-    const background = outcome.ok ? (outcome.scenario.assessment?.background_ug_m3 ?? null) : null;
+    const chosen = this.chosenStandard;
+    const receptors = outcome.ok ? outcome.scenario.receptors.map((r) => ({ id: r.id, name: r.name })) : [];
+    if (!this.showsPreview && this.runVerdicts !== null && this.run !== null) {
+      const verdicts = this.runVerdicts;
+      const standard = verdicts.standards.find((s) => s.name === chosen?.name) ?? verdicts.standards[0];
+      const names = (this.runReceptors?.rows ?? []).map((r) => ({ id: r.id, name: String(r.name ?? r.id) }));
+      element.innerHTML = standard
+        ? verdictTableHtml(standard, names, `${this.run.mode} run, revision ${this.run.revision}`)
+        : '<p class="muted">The run has no standard to screen against.</p>';
+      thresholdsElement.textContent = thresholdsLine(verdicts);
+      return;
+    }
     if (!this.showsPreview && this.runReceptors !== null) {
+      // a run of a scenario without an assessment: its figures as they are
       const { columns, rows } = this.runReceptors;
       element.innerHTML =
         `<table class="results"><caption>Grid run figures [µg/m³], process contribution at receptor height</caption><thead><tr><th scope="col">receptor</th>` +
         columns.map((c) => `<th scope="col">${escapeHtml(c.replace(/_ug_m3$/, ''))}</th>`).join('') +
-        (standard ? `<th scope="col">share of ${escapeHtml(standard.name)}</th>` : '') +
         '</tr></thead><tbody>' +
         rows
-          .map((row) => {
-            const first = row[columns[0]] as number;
-            return (
+          .map(
+            (row) =>
               `<tr><th scope="row">${escapeHtml(String(row.name ?? row.id))}</th>` +
               columns.map((c) => `<td>${typeof row[c] === 'number' ? formatConcentration(row[c] as number) : escapeHtml(String(row[c] ?? ''))}</td>`).join('') +
-              (standard ? `<td>${shareCell(first, background, standard.limit_ug_m3)}</td>` : '') +
-              '</tr>'
-            );
-          })
+              '</tr>',
+          )
           .join('') +
-        '</tbody></table>' +
-        (background !== null ? `<p class="hint">Share = (process contribution + background ${formatConcentration(background)} µg/m³) / limit.</p>` : '');
+        '</tbody></table>';
+      thresholdsElement.textContent = 'No background or standards in this scenario: add them under Conditions for a screen.';
       return;
     }
-    const receptors = outcome.ok ? outcome.scenario.receptors : [];
     if (receptors.length === 0) {
       element.innerHTML = '<p class="muted">No receptors: add one with the map tools.</p>';
+      thresholdsElement.textContent = '';
+      return;
+    }
+    const planned = this.plannedStandards();
+    const standard = planned.find((s) => s.name === chosen?.name) ?? planned[0];
+    const assessment = outcome.ok ? outcome.scenario.assessment : undefined;
+    if (standard !== undefined && assessment !== undefined) {
+      const thresholds = assessment.screening ?? DEFAULT_SCREENING_THRESHOLDS;
+      const figures =
+        this.previewReceptors !== null && this.previewPeak !== null
+          ? previewVerdicts(standard, this.previewPeak, this.previewReceptors, receptors, assessment.background_ug_m3, thresholds)
+          : { name: standard.name, limit_ug_m3: standard.limit_ug_m3, term: standard.term, basisNote: 'waiting for the preview…', maximum: undefined, receptors: [] };
+      element.innerHTML = verdictTableHtml(figures, receptors, 'Gaussian preview, one weather state');
+      const ratios = standard.pcFactor !== 1 && assessment.libraryPollutant === 'NOx' ? { longTerm: assessment.noxToNo2?.longTerm ?? 0.7, shortTerm: assessment.noxToNo2?.shortTerm ?? 0.35, source: '' } : null;
+      thresholdsElement.textContent = thresholdsLine({ label: SCREENING_LABEL, thresholds, background_ug_m3: assessment.background_ug_m3, noxToNo2: ratios });
       return;
     }
     const values = this.previewReceptors;
     element.innerHTML =
-      '<table class="results"><caption>Gaussian preview [µg/m³], one weather state, process contribution</caption><thead><tr><th scope="col">receptor</th><th scope="col">concentration</th>' +
-      (standard ? `<th scope="col">share of ${escapeHtml(standard.name)}</th>` : '') +
-      '</tr></thead><tbody>' +
-      receptors
-        .map((r, n) => {
-          const value = values?.[n];
-          return (
-            `<tr><th scope="row">${escapeHtml(r.name)}</th><td>${value === undefined ? '…' : formatConcentration(value)}</td>` +
-            (standard ? `<td>${value === undefined ? '' : shareCell(value, background, standard.limit_ug_m3)}</td>` : '') +
-            '</tr>'
-          );
-        })
-        .join('') +
-      '</tbody></table>' +
-      (background !== null ? `<p class="hint">Share = (process contribution + background ${formatConcentration(background)} µg/m³) / limit.</p>` : '');
+      '<table class="results"><caption>Gaussian preview [µg/m³], one weather state, process contribution</caption><thead><tr><th scope="col">receptor</th><th scope="col">concentration</th></tr></thead><tbody>' +
+      receptors.map((r, n) => `<tr><th scope="row">${escapeHtml(r.name)}</th><td>${values?.[n] === undefined ? '…' : formatConcentration(values[n])}</td></tr>`).join('') +
+      '</tbody></table>';
+    thresholdsElement.textContent = 'No background or standards in this scenario: add them under Conditions for a screen.';
   }
 
   /** Save the scenario: a new scenario, or a new revision of the one it came from. */
@@ -310,11 +354,12 @@ export class ResultsPanel {
   }
 
   /** A finished run's ground field and receptor figures, fetched from the server. */
-  private async fetchRunResults(run: RunRecord): Promise<{ field: GroundField | null; receptors: { columns: string[]; rows: SummaryReceptor[] } | null }> {
+  private async fetchRunResults(run: RunRecord): Promise<{ field: GroundField | null; receptors: { columns: string[]; rows: SummaryReceptor[] } | null; verdicts: VerdictSet | null }> {
     const fieldFile = run.results.find((file) => file.name === 'ground-field.bin');
     const summaryFile = run.results.find((file) => file.name === 'summary.json');
     let field: GroundField | null = null;
     let receptors: { columns: string[]; rows: SummaryReceptor[] } | null = null;
+    let verdicts: VerdictSet | null = null;
     if (fieldFile) {
       const decoded = decodeGroundField(await this.api.resultBytes(fieldFile));
       field = {
@@ -330,15 +375,24 @@ export class ResultsPanel {
       const rows = summary.receptors ?? [];
       const columns = rows.length > 0 ? Object.keys(rows[0]).filter((key) => /_ug_m3$/.test(key)) : [];
       receptors = { columns, rows };
+      verdicts = summary.verdicts ?? null;
     }
-    return { field, receptors };
+    // The assessment route gives the verdicts on their own (docs/http-api.md); summary.json holds them too.
+    try {
+      const assessed = await this.api.getAssessment(run.id);
+      verdicts = verdictsOf(assessed) ?? verdicts;
+    } catch {
+      // an older server without the route: summary.json's verdicts stand
+    }
+    return { field, receptors, verdicts };
   }
 
   /** Show a finished run's field, figures and files. */
   async loadRun(runId: string): Promise<void> {
     const run = await this.api.getRun(runId);
     this.run = run;
-    const { field, receptors } = await this.fetchRunResults(run);
+    const { field, receptors, verdicts } = await this.fetchRunResults(run);
+    this.runVerdicts = verdicts;
     if (field) {
       this.runField = field;
       this.showsPreview = false;
@@ -347,7 +401,7 @@ export class ResultsPanel {
       this.lastRunToOverlay_ms = performance.now() - this.runStarted_ms;
     }
     this.runReceptors = receptors;
-    this.refreshVerdicts();
+    this.refreshStandards();
     this.renderDownloads(run);
     this.setRunStatus(`Done: ${run.mode} run of revision ${run.revision}${run.startedAt && run.finishedAt ? `, ${formatDuration((Date.parse(run.finishedAt) - Date.parse(run.startedAt)) / 1000)}` : ''}.`);
   }
@@ -419,7 +473,7 @@ export class ResultsPanel {
   private showPreviewAgain(): void {
     this.showsPreview = true;
     (this.q('[data-action="show-preview"]') as HTMLButtonElement).disabled = true;
-    this.refreshVerdicts();
+    this.refreshStandards();
     this.hooks.showField(null);
     document.dispatchEvent(new CustomEvent('plumeplan:preview-wanted'));
   }
@@ -434,14 +488,14 @@ export class ResultsPanel {
   }
 }
 
-function shareCell(value_ug_m3: number, background_ug_m3: number | null, limit_ug_m3: number): string {
-  const total = value_ug_m3 + (background_ug_m3 ?? 0);
-  return formatShare(total / limit_ug_m3);
-}
-
-function formatArea_ha(area_m2: number): string {
-  const ha = area_m2 / 10_000;
-  return ha >= 100 ? String(Math.round(ha)) : String(Number(ha.toPrecision(2)));
+/** The verdicts in an answer of `GET /api/runs/:id/assessment`, wherever the server puts them; null if none. */
+export function verdictsOf(answer: unknown): VerdictSet | null {
+  const candidates = [answer, (answer as { assessment?: unknown } | null)?.assessment];
+  for (const candidate of candidates) {
+    const found = (candidate as { verdicts?: unknown } | null | undefined)?.verdicts;
+    if (found && typeof found === 'object' && Array.isArray((found as { standards?: unknown }).standards)) return found as VerdictSet;
+  }
+  return null;
 }
 
 function formatDuration(seconds: number): string {

@@ -118,6 +118,13 @@ describe('computePreview', () => {
     expect(roseView.peak.y_m).toBeGreaterThan(0);
   });
 
+  it('previews one named state of the screening weather set (wind from the west: the peak lies east)', () => {
+    const set = parsed({ ...demo, weather: { kind: 'screeningSet', sectors: 36, rain_mm_h: 0, airTemperature_K: 288.15, anemometerHeight_m: 10 } });
+    const view = computePreview(set, { maximumColumns: 2500 });
+    expect(view.weatherLabel).toMatch(/^one state of the screening weather set .*wind from 270° at 5 m\/s, class D/);
+    expect(view.peak.x_m).toBeGreaterThan(0);
+  });
+
   it('names the field when the scenario cannot be previewed', () => {
     const outside = parsed({ ...demo, receptors: [{ id: 'far', lat: 55, lon: -2.28 }] });
     expect(() => computePreview(outside)).toThrow(/receptors\[0\]/);
