@@ -13,6 +13,7 @@ import type { Scenario } from '../../../scenarios/format/types.ts';
 import { compareModes, compareResolutions, MODE_DIFFERENCE_FACTOR, RESOLUTION_CHANGE_LIMIT, type FieldComparison } from '../../../solver/drivers/runChecks.ts';
 import { runScenario } from '../../../solver/drivers/runScenario.ts';
 import { MAX_CHECKED_WEATHERS } from '../../../solver/drivers/seriesChecks.ts';
+import { buildSummary } from '../../../server/writers/summary.ts';
 import type { SteadyFieldResult } from '../../../solver/drivers/types.ts';
 
 function field(receptors: number[], ground: number[]): SteadyFieldResult {
@@ -130,6 +131,11 @@ describe('checks of a grid-mode hourly series and wind rose (solver/drivers/seri
     expect(resolutionCheck.receptors.map((r) => r.weather)).toEqual(modeCheck.receptors.map((r) => r.weather));
     expect(result.notes.some((note) => note.startsWith('mode check: for a series, made at'))).toBe(true);
     for (const note of [...modeCheck.notes, ...resolutionCheck.notes]) expect(result.notes).toContain(note);
+    // summary.json carries both tables and the notes (server/writers/summary.ts)
+    const summary = buildSummary(scenario, result) as unknown as Record<string, unknown> & { notes: string[] };
+    expect(summary.modeCheck).toBe(modeCheck);
+    expect(summary.resolutionCheck).toBe(resolutionCheck);
+    for (const note of [...modeCheck.notes, ...resolutionCheck.notes]) expect(summary.notes).toContain(note);
     const never = await runScenario(scenario, { mode: 'grid', resolutionCheck: 'never' });
     expect(never.extraSummary.resolutionCheck).toEqual({ made: false, reason: 'not asked for' });
   });
