@@ -51,8 +51,9 @@ Options:
                      read --levels as percentages of this assessed standard's limit (its name as
                      in summary.json's verdicts); without --levels: 1,10,50,100
   -r, --resolution-check
-                     steady grid runs: solve again at half the cell size and report how much
-                     each figure changes (made without asking when the finer grid is small)
+                     grid runs: solve again at half the cell size and report how much each
+                     figure changes (series and wind roses: at the weathers of the highest
+                     figures); made without asking when the finer grid is small
       --crs EPSG:n   CRS of ground.tif and the map figure; default the site's WGS 84 UTM zone;
                      e.g. EPSG:27700 (British National Grid), EPSG:3035, any EPSG:326nn/327nn
   -q, --quick        leave out the rendered files (map.png, report.pdf), the slowest to write

@@ -14,14 +14,13 @@
  * - Losses: decay and washout as exp(-(k + Lambda) x / u); dry deposition by source depletion when the
  *   deposition velocity is positive (see reference/gaussianPlume.ts for the forms).
  * - No mass budget: the analytic plume has none to report (massBudget_g null).
+ * The plumes are built by ../reference/sourcePlumes.ts, which the grid mode's sub-grid near field and the
+ * siting map use too: one Gaussian point-source plume (and one area plume) everywhere.
  */
 import type { PlacedAreaSource, PlacedPointSource, RunControl, SourceReport, SteadyFieldResult, SteadyRunInput } from './types.ts';
-import { sigmasFor } from '../reference/dispersionCurves.ts';
-import { GaussianAreaSource } from '../reference/gaussianAreaSource.ts';
-import { GaussianPlume } from '../reference/gaussianPlume.ts';
-import { decayRate_per_s, washoutRate_per_s } from '../losses/rates.ts';
-import { plumeRiseFor } from '../sources/plumeRise.ts';
-import { windSpeedAtHeight_m_s } from '../wind/powerLaw.ts';
+import type { GaussianAreaSource } from '../reference/gaussianAreaSource.ts';
+import type { GaussianPlume } from '../reference/gaussianPlume.ts';
+import { areaSourcePlume, firstOrderRates_per_s, pointSourcePlume, type PointSourcePlume } from '../reference/sourcePlumes.ts';
 
 /** g/m3 -> ug/m3 */
 const MICROGRAMS_PER_GRAM = 1e6;
@@ -55,61 +54,26 @@ function format(value: number, digits = 3): string {
   return Number(value.toPrecision(digits)).toString();
 }
 
-/** A point source's steady Gaussian plume, with its effective height and what was applied. */
-export interface PointSourcePlume {
-  plume: GaussianPlume;
-  /** stack height + final plume rise [m] */
-  effectiveHeight_m: number;
-  /** the dispersion curves used */
-  curveDescription: string;
-  notes: string[];
-}
-
 /**
- * The Gaussian plume of one point source in a weather state, in the source's own frame (x downwind, y
- * crosswind, z up, metres from the stack base): Briggs plume rise with the wind at the stack top, the
- * profile wind at the effective height, the class's curves, losses over the travel time, deposition by
- * source depletion out to maxDistance_m. Nothing in it depends on where the stack stands (flat terrain),
- * which is what the siting map (../siting/) relies on.
- *
- * @param lossRate_per_s decay plus washout [1/s]
- * @param maxDistance_m farthest travel the depletion table covers [m]
+ * What the Gaussian mode says about one point source's plume (the plume itself comes from
+ * ../reference/sourcePlumes.ts, the one place the Gaussian point-source plume is built).
  */
-export function pointSourcePlume(point: PlacedPointSource, input: Pick<SteadyRunInput, 'weather' | 'pollutant' | 'dispersion' | 'landUse' | 'windProfile'>, lossRate_per_s: number, maxDistance_m: number): PointSourcePlume {
-  const { weather, dispersion, landUse, windProfile } = input;
+function pointSourceNotes(point: PlacedPointSource, built: PointSourcePlume, mixingHeight_m: number): string[] {
   const notes: string[] = [];
-  requireNumber(`source ${point.id}: height_m`, point.height_m, 'a finite height >= 0 m', Number.isFinite(point.height_m) && point.height_m >= 0);
-  let effective_m = point.height_m;
-  let riseAt: ((x_m: number) => number) | undefined;
-  if (point.plumeRise) {
-    const rise = plumeRiseFor(point, weather, landUse, windProfile);
-    effective_m = point.height_m + rise.finalRise_m;
-    riseAt = rise.riseAt;
+  const { rise, effectiveHeight_m } = built;
+  if (rise !== null) {
     notes.push(
       `source ${point.id}: Briggs plume rise (${rise.regime}), ${format(rise.finalRise_m)} m above the ${format(point.height_m)} m stack, ` +
         `reached ${format(rise.distanceToFinalRise_m)} m downwind (gradual rise before that), wind at stack top ${format(rise.windSpeed_m_s)} m/s`,
     );
   }
-  const windSpeed_m_s = windSpeedAtHeight_m_s(weather, effective_m, landUse, windProfile);
-  const sigmas = sigmasFor(dispersion, weather.stability, landUse, windSpeed_m_s);
-  const plume = new GaussianPlume({
-    emission_g_s: point.emission_g_s,
-    windSpeed_m_s,
-    releaseHeight_m: point.height_m,
-    riseAt,
-    mixingHeight_m: weather.mixingHeight_m,
-    sigmas,
-    lossRate_per_s,
-    depositionVelocity_m_s: input.pollutant.depositionVelocity_m_s,
-    maxDistance_m,
-  });
-  if (!plume.lidApplied && Number.isFinite(weather.mixingHeight_m)) {
+  if (!built.plume.lidApplied && Number.isFinite(mixingHeight_m)) {
     notes.push(
-      `source ${point.id}: effective height ${format(effective_m)} m is at or above the mixing height ${format(weather.mixingHeight_m)} m; ` +
+      `source ${point.id}: effective height ${format(effectiveHeight_m)} m is at or above the mixing height ${format(mixingHeight_m)} m; ` +
         'the lid is ignored for this plume (ground reflection only, a screening choice)',
     );
   }
-  return { plume, effectiveHeight_m: effective_m, curveDescription: sigmas.description, notes };
+  return notes;
 }
 
 /**
@@ -124,7 +88,7 @@ export function pointSourcePlume(point: PlacedPointSource, input: Pick<SteadyRun
  */
 export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {}): SteadyFieldResult {
   const started = performance.now();
-  const { grid, weather, pollutant, dispersion, landUse, windProfile } = input;
+  const { grid, weather, pollutant, windProfile } = input;
   if (!Number.isInteger(grid.nx) || grid.nx < 1 || !Number.isInteger(grid.ny) || grid.ny < 1) {
     throw new RangeError(`grid is ${grid.nx} x ${grid.ny} columns; allowed: positive integers`);
   }
@@ -149,9 +113,7 @@ export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {
     Number.isFinite(pollutant.depositionVelocity_m_s) && pollutant.depositionVelocity_m_s >= 0,
   );
 
-  const decay_per_s = decayRate_per_s(pollutant.halfLife_h);
-  const washout_per_s = washoutRate_per_s(pollutant.washout, weather.rain_mm_h);
-  const lossRate_per_s = decay_per_s + washout_per_s;
+  const { decay_per_s, washout_per_s } = firstOrderRates_per_s(input);
   const depositionVelocity_m_s = pollutant.depositionVelocity_m_s;
   const mixingHeight_m = weather.mixingHeight_m;
 
@@ -171,38 +133,22 @@ export function runGaussianSteady(input: SteadyRunInput, control: RunControl = {
     if (source.kind === 'point') {
       const point: PlacedPointSource = source;
       const maxDistance_m = Math.hypot(extentEast_m, extentNorth_m) + Math.hypot(point.x_m - grid.xWest_m, point.y_m - grid.ySouth_m) + 1000;
-      const { plume, effectiveHeight_m: effective_m, notes: plumeNotes, curveDescription: curves } = pointSourcePlume(point, input, lossRate_per_s, maxDistance_m);
-      curveDescription = curves;
-      notes.push(...plumeNotes);
+      const built = pointSourcePlume(point, input, maxDistance_m);
+      const { plume, effectiveHeight_m: effective_m } = built;
+      curveDescription = built.sigmas.description;
+      notes.push(...pointSourceNotes(point, built, mixingHeight_m));
       prepared.push({ kind: 'point', x_m: point.x_m, y_m: point.y_m, plume });
       reports.push({ id: point.id, x_m: point.x_m, y_m: point.y_m, effectiveHeight_m: effective_m });
     } else {
       const area: PlacedAreaSource = source;
-      requireNumber(
-        `source ${area.id}: releaseHeight_m`,
-        area.releaseHeight_m,
-        'a finite height >= 0 m',
-        Number.isFinite(area.releaseHeight_m) && area.releaseHeight_m >= 0,
-      );
-      const windSpeed_m_s = windSpeedAtHeight_m_s(weather, area.releaseHeight_m, landUse, windProfile);
-      const sigmas = sigmasFor(dispersion, weather.stability, landUse, windSpeed_m_s);
+      const { area: areaPlume, plume, sigmas } = areaSourcePlume(area, grid, input, 2 * Math.hypot(extentEast_m, extentNorth_m) + 1000);
       curveDescription = sigmas.description;
-      const plume = new GaussianPlume({
-        emission_g_s: 1,
-        windSpeed_m_s,
-        releaseHeight_m: area.releaseHeight_m,
-        mixingHeight_m,
-        sigmas,
-        lossRate_per_s,
-        depositionVelocity_m_s,
-        maxDistance_m: 2 * Math.hypot(extentEast_m, extentNorth_m) + 1000,
-      });
       if (!plume.lidApplied && Number.isFinite(mixingHeight_m)) {
         notes.push(
           `source ${area.id}: release height ${format(area.releaseHeight_m)} m is at or above the mixing height ${format(mixingHeight_m)} m; the lid is ignored for it`,
         );
       }
-      prepared.push({ kind: 'area', area: new GaussianAreaSource(area, grid, plume, sigmas) });
+      prepared.push({ kind: 'area', area: areaPlume });
       reports.push({ id: area.id, x_m: area.x_m, y_m: area.y_m, effectiveHeight_m: area.releaseHeight_m });
       notes.push(
         `source ${area.id}: area integrated over its ${area.shares.length} cell overlaps (elements finer nearer the receptor, each a crosswind band average)`,

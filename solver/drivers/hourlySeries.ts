@@ -31,6 +31,7 @@ import {
   seriesReceptorColumns,
   seriesStatistics,
 } from './seriesStatistics.ts';
+import { seriesGridChecks } from './seriesChecks.ts';
 import { distinctNotes, meanSourceReports, seriesMassBudget, standardsSummary, weatherSummary } from './seriesSummaries.ts';
 
 /** One continuous time-march over a series, supplied by the grid solver (see gridTransient.ts). */
@@ -70,6 +71,7 @@ export async function runHourlySeries(
   let sources: SourceReport[];
   const notes: string[] = [];
   let reuseSummary: Record<string, unknown>;
+  const checkSummary: Record<string, unknown> = {};
 
   if (options.method === 'independentHours') {
     const rules = reuseRules(base, options.speedScaling ?? true);
@@ -90,6 +92,12 @@ export async function runHourlySeries(
         `(${fields.identicalReuses} reused for identical weather, ${fields.scaledReuses} by exact wind-speed scaling)`,
       ...distinctNotes(fields.solves),
     );
+    if (options.mode === 'grid' && options.checks !== undefined) {
+      const checks = await seriesGridChecks(base, resolved, fields, (h) => `hour ${hours[h].time}`, options.checks, control);
+      checkSummary.modeCheck = checks.modeCheck;
+      checkSummary.resolutionCheck = checks.resolutionCheck;
+      notes.push(...checks.notes);
+    }
     reuseSummary = {
       method: 'independentHours',
       rules: rules.explanation,
@@ -124,6 +132,12 @@ export async function runHourlySeries(
       ...march.notes,
     );
     reuseSummary = { method: 'continuous', steps: march.steps };
+    if (options.checks !== undefined) {
+      // The checks compare steady solves of one weather; a march's hour carries the hours before it.
+      const reason = 'not made: the continuous method carries the field from hour to hour, and the checks compare steady solves of one weather (run the series with hourlyMethod "independentHours" for them)';
+      checkSummary.resolutionCheck = { made: false, reason };
+      notes.push(`mode check: ${reason}`);
+    }
   } else {
     throw new RangeError(
       `solver.hourlyMethod: ${JSON.stringify(options.method)} is not allowed ("independentHours" or "continuous")`,
@@ -146,6 +160,7 @@ export async function runHourlySeries(
     ...(options.extraSummary ?? {}),
     weather: weatherSummary(resolved, resolutions.map((r) => r.stabilitySource), coverage, hours[0].time, hours[hours.length - 1].time, rose),
     series: reuseSummary,
+    ...checkSummary,
     groundGrid: {
       meanPeak: groundPeak(base, statistics.groundMean),
       hourlyMaxPeak: groundPeak(base, statistics.groundMax),

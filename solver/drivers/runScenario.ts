@@ -17,6 +17,7 @@ import type { SteadySolver } from './solveSteady.ts';
 import { GROUND_LEVEL_HEIGHT_m, runSteadyScenario, steadyRunResult } from './steadyScenario.ts';
 import { solveSteady } from './solveSteady.ts';
 import { AUTOMATIC_RESOLUTION_CHECK_CELLS, compareModes, compareResolutions } from './runChecks.ts';
+import { halfSizeCells, type SeriesCheckOptions } from './seriesChecks.ts';
 import { columnsPerSide } from '../grid/localGrid.ts';
 import type { MassBudget, RunControl, ScenarioRunResult, SteadyFieldResult, SteadyRunInput } from './types.ts';
 import { assessmentPlan, type AssessmentPlan } from '../assessment/standards.ts';
@@ -46,9 +47,9 @@ export interface RunScenarioOptions {
   /** threads each step of a continuous grid march is split over (default 1) */
   stepThreads?: number;
   /**
-   * the resolution check of a steady grid run (the same run at half the cell size, ./runChecks.ts):
-   * 'auto' (default) when the half-size grid has at most AUTOMATIC_RESOLUTION_CHECK_CELLS cells,
-   * 'always', or 'never'
+   * the resolution check of a grid run (the same run at half the cell size, ./runChecks.ts; for an
+   * hourly series or a wind rose at a few of its weathers, ./seriesChecks.ts): 'auto' (default) when the
+   * half-size grid has at most AUTOMATIC_RESOLUTION_CHECK_CELLS cells, 'always', or 'never'
    */
   resolutionCheck?: 'auto' | 'always' | 'never';
 }
@@ -134,6 +135,7 @@ async function dispatchByWeather(
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
+        checks: seriesChecks(scenario, geometry, options),
       });
     }
     case 'windRose':
@@ -144,6 +146,7 @@ async function dispatchByWeather(
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
+        checks: seriesChecks(scenario, geometry, options),
       });
     case 'screeningSet':
       return runScreeningSet(seriesBaseInput(scenario, geometry), weather, {
@@ -204,6 +207,22 @@ async function steadyGridChecks(
     extraSummary.resolutionCheck = { made: false, reason: `not made: ${error.message}` };
   }
   return notes;
+}
+
+/**
+ * The checks of a grid-mode series or rose (./seriesChecks.ts): the half-size domain, built only when
+ * the resolution check is made, and the steady solver for the checks' solves (the caller's steady
+ * solver, cold: the series solvers keep warm starts of the run's own grid).
+ */
+function seriesChecks(scenario: Scenario, geometry: ScenarioGeometry, options: RunScenarioOptions): SeriesCheckOptions {
+  const halfDomain = { ...geometry.domain, spacing_m: geometry.domain.spacing_m / 2 };
+  return {
+    resolutionCheck: options.resolutionCheck ?? 'auto',
+    spacing_m: geometry.domain.spacing_m,
+    halfSizeCells: halfSizeCells(geometry.domain),
+    halfSizeBase: () => seriesBaseInput(scenario, prepareScenarioGeometry({ ...scenario, domain: halfDomain })),
+    solve: options.solve,
+  };
 }
 
 /** Rows per step thread below which a continuous march stays on one thread. */

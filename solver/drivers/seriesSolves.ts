@@ -14,6 +14,7 @@ import type { Assessment, SolverMode } from '../../scenarios/format/types.ts';
 import { releaseHeights_m } from './gridSteady.ts';
 import { createSeriesSteadySolver, type SteadySolver } from './solveSteady.ts';
 import type { SiteColumns } from '../grid/siteBoundary.ts';
+import type { SeriesCheckOptions } from './seriesChecks.ts';
 import type { MassBudget, ResolvedWeather, RunControl, SourceReport, SteadyFieldResult, SteadyRunInput } from './types.ts';
 
 /**
@@ -43,6 +44,8 @@ export interface SeriesRunOptions {
   windRoseCaption?: string;
   /** distinct solves in flight at once (default 1; more only helps a worker-backed solver) */
   concurrency?: number;
+  /** the grid run's checks on itself at a few of its weathers (./seriesChecks.ts); none when absent */
+  checks?: SeriesCheckOptions;
 }
 
 

@@ -27,6 +27,7 @@ import { reuseRules, solveWithReuse, type SeriesBaseInput, type SeriesRunOptions
 import { groundPeak, seriesReceptorColumns } from './seriesStatistics.ts';
 import { distinctNotes, meanSourceReports, seriesMassBudget, standardsSummary } from './seriesSummaries.ts';
 import { solveSteady } from './solveSteady.ts';
+import { seriesGridChecks } from './seriesChecks.ts';
 import { isComputable, pcFactorOf } from '../assessment/standards.ts';
 import type { ResolvedWeather, ScenarioRunResult } from './types.ts';
 
@@ -161,6 +162,13 @@ export async function runWindRose(
       `${fields.scaledReuses} by exact wind-speed scaling); rotation between sectors not used (not exact on the grid)`,
     ...distinctNotes(fields.solves),
   );
+  const checkSummary: Record<string, unknown> = {};
+  if (options.mode === 'grid' && options.checks !== undefined) {
+    const checks = await seriesGridChecks(base, states, fields, (i) => `wind-rose cell ${i}`, options.checks, control, frequencies);
+    checkSummary.modeCheck = checks.modeCheck;
+    checkSummary.resolutionCheck = checks.resolutionCheck;
+    notes.push(...checks.notes);
+  }
   const rose = windRoseFromCells(weather.cells, weather.sectorWidth_deg, CALM_THRESHOLD_m_s);
   let meanSpeed = 0;
   for (let i = 0; i < cells; i++) meanSpeed += frequencies[i] * states[i].windSpeed_m_s;
@@ -191,6 +199,7 @@ export async function runWindRose(
       rotationReuse: 'not used: rotating a field between sectors is not exact on a Cartesian grid',
     },
     groundGrid: { meanPeak: groundPeak(base, groundMean), worstCellPeak: groundPeak(base, groundMax) },
+    ...checkSummary,
   };
   if (options.assessment !== undefined) {
     extraSummary.assessment = standardsSummary(

@@ -44,24 +44,25 @@ export function placeSiteBoundary(boundary: readonly [number, number][], project
  * @param ring_m closed ring [m]
  */
 export function isInsideRing(ring_m: readonly (readonly [number, number])[], x_m: number, y_m: number): boolean {
+  // Hot: the Gaussian area source samples every cell it partly covers with it, for every target.
   let inside = false;
+  let x0 = ring_m[0][0];
+  let y0 = ring_m[0][1];
   for (let v = 1; v < ring_m.length; v++) {
-    const [x0, y0] = ring_m[v - 1];
-    const [x1, y1] = ring_m[v];
-    // On the edge: collinear and within its extent.
-    const cross = (x1 - x0) * (y_m - y0) - (y1 - y0) * (x_m - x0);
-    const scale = Math.abs(x1 - x0) + Math.abs(y1 - y0);
-    if (
-      Math.abs(cross) <= 1e-9 * scale * scale &&
-      x_m >= Math.min(x0, x1) && x_m <= Math.max(x0, x1) &&
-      y_m >= Math.min(y0, y1) && y_m <= Math.max(y0, y1)
-    ) {
-      return true;
+    const x1 = ring_m[v][0];
+    const y1 = ring_m[v][1];
+    // On the edge: within its extent (cheap, tried first) and collinear.
+    if (((x_m >= x0 && x_m <= x1) || (x_m <= x0 && x_m >= x1)) && ((y_m >= y0 && y_m <= y1) || (y_m <= y0 && y_m >= y1))) {
+      const cross = (x1 - x0) * (y_m - y0) - (y1 - y0) * (x_m - x0);
+      const scale = Math.abs(x1 - x0) + Math.abs(y1 - y0);
+      if (Math.abs(cross) <= 1e-9 * scale * scale) return true;
     }
     if (y0 > y_m !== y1 > y_m) {
       const xCrossing = x0 + ((y_m - y0) * (x1 - x0)) / (y1 - y0);
       if (x_m < xCrossing) inside = !inside;
     }
+    x0 = x1;
+    y0 = y1;
   }
   return inside;
 }

@@ -25,6 +25,7 @@
  */
 import type { AreaCellShare, PlacedAreaSource } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
+import { isInsideRing } from '../grid/siteBoundary.ts';
 import type { SigmaFunction } from './dispersionCurves.ts';
 import { type GaussianPlume, MINIMUM_SPREAD_DISTANCE_M } from './gaussianPlume.ts';
 
@@ -45,19 +46,6 @@ const FINEST_SAMPLING_LEVEL = 7;
 const NEAR_STRIPS = 8;
 /** Crosswind offset beyond which nothing contributes, in sigma_y [-]. */
 const CROSSWIND_CUTOFF_SIGMAS = 10;
-
-/** Even-odd point-in-polygon test against a closed ring [m]. */
-export function insideRing(x: number, y: number, ring: readonly (readonly [number, number])[]): boolean {
-  let inside = false;
-  for (let a = 0, b = ring.length - 1; a < ring.length; b = a++) {
-    const xa = ring[a][0];
-    const ya = ring[a][1];
-    const xb = ring[b][0];
-    const yb = ring[b][1];
-    if (ya > y !== yb > y && x < ((xb - xa) * (y - ya)) / (yb - ya) + xa) inside = !inside;
-  }
-  return inside;
-}
 
 export class GaussianAreaSource {
   readonly id: string;
@@ -256,7 +244,7 @@ export class GaussianAreaSource {
         const x = x0 + (a + 0.5) * step;
         for (let b = 0; b < perSide; b++) {
           const y = y0 + (b + 0.5) * step;
-          if (insideRing(x, y, this.ring_m)) {
+          if (isInsideRing(this.ring_m, x, y)) {
             count++;
             sumX += x;
             sumY += y;
@@ -388,7 +376,7 @@ export class GaussianAreaSource {
           const sx = x - half + (p + 0.5) * step;
           for (let q = 0; q < PARTIAL_SAMPLES_PER_SIDE; q++) {
             const sy = y - half + (q + 0.5) * step;
-            if (insideRing(sx, sy, this.ring_m)) {
+            if (isInsideRing(this.ring_m, sx, sy)) {
               count++;
               sumX += sx;
               sumY += sy;

@@ -1,9 +1,9 @@
 /**
- * The Gaussian plume of one placed source under one weather state, for the grid mode's sub-grid near field
- * (../sources/subGridPlume.ts), built as the Gaussian mode builds its plumes (../drivers/gaussianSteady.ts:
- * pointSourcePlume and its area branch; the two should become one, see docs/near-field.md), so both carry
- * the same dispersion curves, plume rise, transport wind and first-order losses. The sub-grid plume may
- * ask for another transport speed (transportWind_m_s); curves and rise stay the same.
+ * The Gaussian plume of one placed source under one weather state: the one place it is built, for the
+ * Gaussian mode (../drivers/gaussianSteady.ts), the grid mode's sub-grid near field
+ * (../sources/subGridPlume.ts) and the siting map (../siting/sitingMap.ts), so all of them carry the same
+ * dispersion curves, plume rise, transport wind and first-order losses. The sub-grid plume may ask for
+ * another transport speed (transportWind_m_s); curves and rise stay the same.
  *
  * - Point sources: Briggs plume rise with the wind at the stack top (../sources/plumeRise.ts); the
  *   centreline follows the gradual rise up to the distance of final rise; the transport speed is the

@@ -4,7 +4,7 @@
  *
  * - Grid mode: one steady adjoint solve per receptor and weather state (./adjointSolve.ts), read at the
  *   stack's effective height. Linear in the emission, so the map is Q x the adjoint at height H.
- * - Gaussian mode: the same plume (../drivers/gaussianSteady.ts pointSourcePlume) evaluated directly
+ * - Gaussian mode: the same plume (../reference/sourcePlumes.ts pointSourcePlume) evaluated directly
  *   from every column centre to every receptor.
  * - Weather: one steady state, or several with weights (a wind rose's cells and frequencies: the map is
  *   then the frequency-weighted mean PC, the long-term mean).
@@ -15,10 +15,9 @@
  */
 import { fieldAtHeight } from '../diagnostics/receptorSampling.ts';
 import { gridModelParts, MICROGRAMS_PER_GRAM, releaseHeights_m } from '../drivers/gridSteady.ts';
-import { pointSourcePlume } from '../drivers/gaussianSteady.ts';
+import { pointSourcePlume } from '../reference/sourcePlumes.ts';
 import type { PlacedPointSource, PlacedReceptor, ResolvedWeather, RunControl, SteadyRunInput } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
-import { decayRate_per_s, washoutRate_per_s } from '../losses/rates.ts';
 import type { SolverMode } from '../../scenarios/format/types.ts';
 import { partOfProgress, solveReceptorAdjoint } from './adjointSolve.ts';
 
@@ -207,12 +206,11 @@ export function gridSitingMap(base: SitingBase, stack: PlacedPointSource, weathe
 export function gaussianSitingMap(base: SitingBase, stack: PlacedPointSource, weathers: readonly WeightedWeather[], options: SitingMapOptions = {}): { map: SitingMap; pcAt: PcAt } {
   const started = performance.now();
   checkWeights(weathers);
-  const { grid, receptors, pollutant } = base;
+  const { grid, receptors } = base;
   const control = options.control ?? {};
   const diagonal_m = Math.hypot(grid.nx * grid.spacing_m, grid.ny * grid.spacing_m);
   const prepared = weathers.map(({ weather, weight }) => {
-    const lossRate_per_s = decayRate_per_s(pollutant.halfLife_h) + washoutRate_per_s(pollutant.washout, weather.rain_mm_h);
-    const { plume, effectiveHeight_m } = pointSourcePlume(stack, { ...base, weather }, lossRate_per_s, 2 * diagonal_m + 1000);
+    const { plume, effectiveHeight_m } = pointSourcePlume(stack, { ...base, weather }, 2 * diagonal_m + 1000);
     const theta = (weather.windFrom_deg * Math.PI) / 180;
     return { plume, effectiveHeight_m, weight, downwindX: -Math.sin(theta), downwindY: -Math.cos(theta) };
   });

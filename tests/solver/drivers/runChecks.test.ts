@@ -2,7 +2,8 @@
  * The checks a steady grid run makes on itself (solver/drivers/runChecks.ts): behaviour checks of the
  * thresholds (a factor of 1.25 between the modes, 10 % between cell sizes) on made-up fields, and one
  * small run of the demo through runScenario, where both checks are made and their tables land in the
- * summary.
+ * summary; the same for a small hourly series and wind rose, where the checks are made at the weathers
+ * of the highest figures and the Gaussian side is checked against that weather's own Gaussian run.
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -11,6 +12,8 @@ import { parseScenario } from '../../../scenarios/format/schema.ts';
 import type { Scenario } from '../../../scenarios/format/types.ts';
 import { compareModes, compareResolutions, MODE_DIFFERENCE_FACTOR, RESOLUTION_CHANGE_LIMIT, type FieldComparison } from '../../../solver/drivers/runChecks.ts';
 import { runScenario } from '../../../solver/drivers/runScenario.ts';
+import { MAX_CHECKED_WEATHERS } from '../../../solver/drivers/seriesChecks.ts';
+import { buildSummary } from '../../../server/writers/summary.ts';
 import type { SteadyFieldResult } from '../../../solver/drivers/types.ts';
 
 function field(receptors: number[], ground: number[]): SteadyFieldResult {
@@ -79,5 +82,88 @@ describe('checks of a steady grid run through runScenario', () => {
     expect(never.extraSummary.resolutionCheck).toEqual({ made: false, reason: 'not asked for' });
     const gaussian = await runScenario(scenario, { mode: 'gaussian' });
     expect(gaussian.extraSummary.modeCheck).toBeUndefined();
+  });
+});
+
+describe('checks of a grid-mode hourly series and wind rose (solver/drivers/seriesChecks.ts)', () => {
+  const demo = path.join(import.meta.dirname, '..', '..', '..', 'scenarios', 'merrowdene-heat-plant', 'scenario.json');
+  /** The demo on a small grid with the given weather (hours or a rose). */
+  function smallDemoWith(weather: unknown, hourlyMethod = 'independentHours'): Scenario {
+    const raw = JSON.parse(readFileSync(demo, 'utf8'));
+    raw.domain = { halfWidth_m: 3000, spacing_m: 150, height_m: 1000, layers: 10 };
+    raw.weather = weather;
+    raw.solver = { mode: 'grid', hourlyMethod };
+    const outcome = parseScenario(raw);
+    if (!outcome.ok) throw new Error(JSON.stringify(outcome.issues));
+    return outcome.scenario;
+  }
+  const hour = (time: string, windFrom_deg: number, windSpeed_m_s: number, stability: string) => ({
+    time, windSpeed_m_s, windFrom_deg, stability, mixingHeight_m: 800, rain_mm_h: 0, airTemperature_K: 283.15, anemometerHeight_m: 10,
+  });
+  const hours = [
+    hour('2026-03-02T10:00:00Z', 250, 5, 'D'),
+    hour('2026-03-02T11:00:00Z', 200, 3, 'C'),
+    hour('2026-03-02T12:00:00Z', 300, 7, 'D'),
+    hour('2026-03-02T13:00:00Z', 90, 2, 'E'),
+  ];
+
+  it('hourly series: checks the hours of the highest figures, names them, and compares with the Gaussian mode of that hour', async () => {
+    const scenario = smallDemoWith({ kind: 'hourly', hours });
+    const result = await runScenario(scenario, { mode: 'grid' });
+    type SeriesCheck = FieldComparison & { weathers: { weather: string; chosenFor: string[] }[] };
+    const modeCheck = result.extraSummary.modeCheck as SeriesCheck;
+    const resolutionCheck = result.extraSummary.resolutionCheck as { made: boolean } & SeriesCheck;
+    expect(modeCheck.weathers.length).toBeGreaterThanOrEqual(1);
+    expect(modeCheck.weathers.length).toBeLessThanOrEqual(Math.min(MAX_CHECKED_WEATHERS, hours.length));
+    expect(modeCheck.weathers[0].chosenFor[0]).toBe('the highest ground-level figure off the site');
+    expect(modeCheck.basis).toContain(`at ${modeCheck.weathers.length} of the 4 weathers of the series`);
+    // Each receptor is compared in the hour of its own highest figure: the run's figure is its max_ug_m3.
+    const max = result.receptorColumns.find((c) => c.key === 'max_ug_m3')!.values;
+    for (const [r, item] of modeCheck.receptors.entries()) {
+      expect(item.value_ug_m3).toBeCloseTo(max[r], 9);
+      // The Gaussian figure is that hour's steady Gaussian run, made here afresh through runScenario.
+      const time = /hour (\S+)/.exec(item.weather ?? '')![1];
+      const steady = await runScenario(smallDemoWith({ kind: 'steady', ...hours.find((h) => h.time === time)!, time: undefined }), { mode: 'gaussian' });
+      expect(item.other_ug_m3).toBeCloseTo(steady.receptorColumns[0].values[r], 9);
+    }
+    expect(resolutionCheck.made).toBe(true);
+    expect(resolutionCheck.basis).toMatch(/^cells of 150 m \(the series' own figures\) against steady solves at 75 m, same domain, at \d of the 4 weathers/);
+    expect(resolutionCheck.receptors.map((r) => r.weather)).toEqual(modeCheck.receptors.map((r) => r.weather));
+    expect(result.notes.some((note) => note.startsWith('mode check: for a series, made at'))).toBe(true);
+    for (const note of [...modeCheck.notes, ...resolutionCheck.notes]) expect(result.notes).toContain(note);
+    // summary.json carries both tables and the notes (server/writers/summary.ts)
+    const summary = buildSummary(scenario, result) as unknown as Record<string, unknown> & { notes: string[] };
+    expect(summary.modeCheck).toBe(modeCheck);
+    expect(summary.resolutionCheck).toBe(resolutionCheck);
+    for (const note of [...modeCheck.notes, ...resolutionCheck.notes]) expect(summary.notes).toContain(note);
+    const never = await runScenario(scenario, { mode: 'grid', resolutionCheck: 'never' });
+    expect(never.extraSummary.resolutionCheck).toEqual({ made: false, reason: 'not asked for' });
+  });
+
+  it('continuous method: says the checks are not made and why', async () => {
+    const result = await runScenario(smallDemoWith({ kind: 'hourly', hours: hours.slice(0, 2) }, 'continuous'), { mode: 'grid', resolutionCheck: 'never' });
+    expect((result.extraSummary.resolutionCheck as { made: boolean; reason: string }).reason).toMatch(/^not made: the continuous method/);
+    expect(result.extraSummary.modeCheck).toBeUndefined();
+  });
+
+  it('wind rose: a cell that never occurs is not checked, however high its figures', async () => {
+    const rose = {
+      kind: 'windRose',
+      sectorWidth_deg: 30,
+      rain_mm_h: 0,
+      airTemperature_K: 283.15,
+      anemometerHeight_m: 10,
+      cells: [
+        { windFrom_deg: 250, windSpeed_m_s: 5, stability: 'D', mixingHeight_m: 800, frequency: 0.6 },
+        { windFrom_deg: 60, windSpeed_m_s: 8, stability: 'D', mixingHeight_m: 800, frequency: 0.4 },
+        // light stable wind: the highest figures of the three, but frequency 0
+        { windFrom_deg: 250, windSpeed_m_s: 1, stability: 'F', mixingHeight_m: 800, frequency: 0 },
+      ],
+    };
+    const result = await runScenario(smallDemoWith(rose), { mode: 'grid', resolutionCheck: 'never' });
+    const modeCheck = result.extraSummary.modeCheck as FieldComparison & { weathers: { weather: string }[] };
+    expect(modeCheck.weathers.length).toBeGreaterThanOrEqual(1);
+    for (const w of modeCheck.weathers) expect(w.weather).not.toMatch(/^wind-rose cell 2 /);
+    expect(modeCheck.basis).toContain('of the 3 weathers of the series');
   });
 });
