@@ -114,7 +114,10 @@ function drawSection(doc: Doc, section: ReportSection): void {
   // Keep the heading with what follows it: the paragraphs and the first table when that table is short.
   doc.font(REGULAR).fontSize(9.5);
   let following = section.paragraphs.reduce((sum, text) => sum + doc.heightOfString(text, { width: textWidth(doc) }) + 5, 0);
-  if (section.figure === undefined && section.tables.length > 0) {
+  if (section.figure !== undefined) {
+    // keep the heading with its figure: a heading alone at the foot of a page reads as a lost section
+    following += (figureWidth(doc, section) * section.figure.height) / section.figure.width + 30;
+  } else if (section.tables.length > 0) {
     const first = tableHeight(doc, section.tables[0]);
     if (first < (pageBottom(doc) - doc.page.margins.top) / 2) following += first;
   }
@@ -122,8 +125,7 @@ function drawSection(doc: Doc, section: ReportSection): void {
   heading(doc, section.heading);
   for (const text of section.paragraphs) paragraph(doc, text);
   if (section.figure !== undefined) {
-    const fullWidth = textWidth(doc);
-    const width = section.id === 'map' ? fullWidth : Math.min(fullWidth, 300);
+    const width = figureWidth(doc, section);
     const height = (width * section.figure.height) / section.figure.width;
     ensureRoom(doc, height + 30);
     const top = doc.y;
@@ -141,6 +143,11 @@ function drawSection(doc: Doc, section: ReportSection): void {
   }
   for (const table of section.tables) drawTable(doc, table);
   for (const text of section.after ?? []) paragraph(doc, text, { size: 8, colour: MUTED });
+}
+
+/** Width a section's figure is drawn at: the map across the page, other figures (the wind rose) smaller. */
+function figureWidth(doc: Doc, section: ReportSection): number {
+  return section.id === 'map' ? textWidth(doc) : Math.min(textWidth(doc), 300);
 }
 
 /** Height a table takes when drawn whole: caption, heading row and every row. */
