@@ -10,6 +10,7 @@ import { compareRuns, type ComparedRun, type Comparison } from '../../solver/ass
 import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { comparisonJson, differenceFootprint, type DifferenceCollection } from '../writers/comparison.ts';
+import { buildComparisonReportFiles } from '../writers/comparisonReport.ts';
 import { defaultFootprintLevels } from '../writers/footprint.ts';
 import { formatFootprint, writeResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
@@ -24,6 +25,9 @@ Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
                       delta_ug_m3, change_pct), the change of each footprint level's area, every
                       screening verdict that changes, notes (resampling when the grids differ)
   difference.geojson  bands of B - A on A's grid, increases and decreases apart (WGS 84)
+  difference-map.svg, difference-map.png   the difference figure: B - A on a diverging scale
+  comparison-report.html, comparison-report.pdf   the comparison report (A4): caution, both
+                      scenarios, the difference figure, receptor changes, areas and verdicts that change
   a/, b/              each run's own result folder, as "plumeplan run" writes it
 
 Options:
@@ -143,7 +147,9 @@ export async function writeComparisonFolder(
   await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
   await writeFile(path.join(directory, 'comparison.json'), `${JSON.stringify(json, null, 2)}\n`, 'utf8');
   await writeFile(path.join(directory, 'difference.geojson'), formatFootprint(difference), 'utf8');
-  return { comparison, directory, files: ['comparison.json', 'difference.geojson', 'a/', 'b/'], difference };
+  const reportFiles = await buildComparisonReportFiles({ a, b, comparison, difference, levelsBasis: (json.levels as { basis: string }).basis });
+  for (const [name, data] of reportFiles) await writeFile(path.join(directory, name), data);
+  return { comparison, directory, files: ['comparison.json', 'difference.geojson', ...reportFiles.map(([name]) => name), 'a/', 'b/'], difference };
 }
 
 function side(s: ComparisonSide): ComparedRun {
