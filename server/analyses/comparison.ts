@@ -29,6 +29,8 @@ export interface BuiltComparison {
   files: [string, string][];
   /** the options each side's own result files are built with (the levels compared) */
   sideOptions: ResultFolderOptions;
+  /** how the compared footprint levels were chosen (as comparison.json says) */
+  levelsBasis: string;
 }
 
 /**
@@ -41,10 +43,9 @@ export function buildComparisonFiles(a: ComparisonSide, b: ComparisonSide, level
     levels_ug_m3 ?? defaultFootprintLevels(peakOf(a.result) >= peakOf(b.result) ? a.result.footprint_ug_m3 : b.result.footprint_ug_m3);
   const comparison = compareRuns(side(a), side(b), { levels_ug_m3: levels });
   const difference = differenceFootprint(comparison);
-  const json = comparisonJson(
-    comparison,
-    levels_ug_m3 !== undefined ? `given (${levelsOrigin})` : 'round numbers (1-2-5 series) across the range of the run with the larger peak',
-  );
+  const levelsBasis =
+    levels_ug_m3 !== undefined ? `given (${levelsOrigin})` : 'round numbers (1-2-5 series) across the range of the run with the larger peak';
+  const json = comparisonJson(comparison, levelsBasis);
   return {
     comparison,
     difference,
@@ -53,6 +54,7 @@ export function buildComparisonFiles(a: ComparisonSide, b: ComparisonSide, level
       [DIFFERENCE_GEOJSON_FILE, formatFootprint(difference)],
     ],
     sideOptions: { levels_ug_m3: levels.length > 0 ? levels : undefined },
+    levelsBasis,
   };
 }
 

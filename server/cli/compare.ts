@@ -10,6 +10,7 @@ import type { Comparison } from '../../solver/assessment/comparison.ts';
 import { buildComparisonFiles, type ComparisonSide } from '../analyses/comparison.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { comparisonJson, type DifferenceCollection } from '../writers/comparison.ts';
+import { buildComparisonReportFiles } from '../writers/comparisonReport.ts';
 import { writeResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
@@ -25,6 +26,9 @@ Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
                       delta_ug_m3, change_pct), the change of each footprint level's area, every
                       screening verdict that changes, notes (resampling when the grids differ)
   difference.geojson  bands of B - A on A's grid, increases and decreases apart (WGS 84)
+  difference-map.svg, difference-map.png   the difference figure: B - A on a diverging scale
+  comparison-report.html, comparison-report.pdf   the comparison report (A4): caution, both
+                      scenarios, the difference figure, receptor changes, areas and verdicts that change
   a/, b/              each run's own result folder, as "plumeplan run" writes it
 
 Options:
@@ -127,7 +131,16 @@ export async function writeComparisonFolder(
   await writeResultFolder(path.join(directory, 'a'), a.scenario, a.result, built.sideOptions);
   await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, built.sideOptions);
   for (const [name, text] of built.files) await writeFile(path.join(directory, name), text, 'utf8');
-  return { comparison: built.comparison, directory, files: [...built.files.map(([name]) => name), 'a/', 'b/'], difference: built.difference };
+  const reportFiles = await buildComparisonReportFiles({
+    a: { path: a.source, scenario: a.scenario, result: a.result },
+    b: { path: b.source, scenario: b.scenario, result: b.result },
+    comparison: built.comparison,
+    difference: built.difference,
+    levelsBasis: built.levelsBasis,
+  });
+  for (const [name, data] of reportFiles) await writeFile(path.join(directory, name), data);
+  const names = [...built.files.map(([name]) => name), ...reportFiles.map(([name]) => name), 'a/', 'b/'];
+  return { comparison: built.comparison, directory, files: names, difference: built.difference };
 }
 
 /** What stdout says after a comparison. */

@@ -7,7 +7,7 @@
  * each message naming the option or field; 1 internal failure or a capability this build lacks;
  * 130 interrupted (Ctrl-C during a grid solve in its worker thread).
  */
-import { stat } from 'node:fs/promises';
+import { readFile, stat } from 'node:fs/promises';
 import path from 'node:path';
 import { loadScenarioFile } from '../scenarioFiles/load.ts';
 import { formatIssues } from '../../scenarios/format/schema.ts';
@@ -19,6 +19,8 @@ import { solveGridSteadyInWorker } from '../jobs/solveInWorker.ts';
 import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { resolveCrs, type ExportCrs } from '../writers/crs.ts';
+import { parseContextLayers } from '../writers/contextLayers.ts';
+import type { ContextLayer } from '../writers/map/mapSvg.ts';
 import { runProvenance } from '../writers/provenance.ts';
 import { writeResultFolder, type WrittenResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
@@ -29,7 +31,7 @@ import { levelsFromPercentages } from '../../solver/assessment/footprintAreas.ts
 import { verdictTable } from '../writers/assessmentFigures.ts';
 import type { ScreeningVerdicts } from '../../solver/assessment/verdicts.ts';
 
-export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--percent-of STANDARD] [--resolution-check] [--crs EPSG:n] [--quick]
+export const RUN_USAGE = `usage: plumeplan run SCENARIO --out DIR [--mode grid|gaussian] [--levels L1,L2,...] [--percent-of STANDARD] [--resolution-check] [--crs EPSG:n] [--context-layers FILE] [--quick]
 
 Runs a scenario file (format plumeplan.scenario/1) and writes into DIR (created if missing):
   summary.json       the run at a glance: grid, mass budget, sources, peak, receptors, caution
@@ -56,6 +58,10 @@ Options:
                      figures); made without asking when the finer grid is small
       --crs EPSG:n   CRS of ground.tif and the map figure; default the site's WGS 84 UTM zone;
                      e.g. EPSG:27700 (British National Grid), EPSG:3035, any EPSG:326nn/327nn
+      --context-layers FILE
+                     a GeoJSON file (RFC 7946, WGS 84 lon/lat) of context drawn thinly on the map
+                     figure: site boundary, buildings, roads; each feature's properties.layer names
+                     its layer in the legend (default: the collection's name, else the file's)
   -q, --quick        leave out the rendered files (map.png, report.pdf), the slowest to write
   -h, --help         show this help
 
@@ -82,6 +88,8 @@ interface RunArguments {
   /** the standard whose limit --levels are percentages of */
   percentOf?: string;
   crs?: ExportCrs;
+  /** the GeoJSON file of context layers for the map figure */
+  contextLayersPath?: string;
   quick: boolean;
 }
 
@@ -127,12 +135,16 @@ export async function runCommand(argv: string[], io: CommandIO, options: RunComm
       io.stderr.write(`plumeplan run: ${levels}\n`);
       return 2;
     }
+    // read before the run, so a bad file is said at once and not after a long solve
+    const contextLayers = args.contextLayersPath === undefined ? undefined : await readContextLayers(args.contextLayersPath, io);
+    if (contextLayers === null) return 2;
 
     const result = await executeScenario(scenario, mode, (fraction, message) => progress.update(fraction, message), options.solve, args.resolutionCheck === true ? 'always' : 'auto');
     progress.update(1, 'writing the result folder');
     const written = await writeResultFolder(args.outDirectory, scenario, result, {
       ...levels,
       crs: args.crs,
+      contextLayers,
       outputs: args.quick ? 'quick' : 'full',
       provenance: runProvenance(scenario, { runDate: startedAt, command: commandLine(argv) }),
     });
@@ -153,6 +165,7 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     'resolution-check': { type: 'boolean', short: 'r' },
     'percent-of': { type: 'string', short: 'p' },
     crs: { type: 'string' },
+    'context-layers': { type: 'string' },
     quick: { type: 'boolean', short: 'q' },
     help: { type: 'boolean', short: 'h' },
   });
@@ -172,6 +185,7 @@ function readRunArguments(argv: string[]): RunArguments | 'help' {
     resolutionCheck: options['resolution-check'] === true,
     percentOf: typeof options['percent-of'] === 'string' ? options['percent-of'] : undefined,
     crs: typeof options.crs === 'string' ? parseCrs(options.crs) : undefined,
+    contextLayersPath: typeof options['context-layers'] === 'string' ? options['context-layers'] : undefined,
     quick: options.quick === true,
   };
 }
@@ -205,6 +219,28 @@ export async function checkOutFolder(outDirectory: string, io: CommandIO, comman
     return false;
   }
   return true;
+}
+
+/**
+ * Read --context-layers: the file's GeoJSON as map layers.
+ *
+ * @returns the layers, or null after printing what is wrong (the command exits 2)
+ */
+async function readContextLayers(file: string, io: CommandIO): Promise<ContextLayer[] | null> {
+  let text: string;
+  try {
+    text = await readFile(file, 'utf8');
+  } catch (error) {
+    io.stderr.write(`plumeplan run: --context-layers: cannot read ${file} (${(error as NodeJS.ErrnoException).code ?? (error as Error).message}); give a GeoJSON file\n`);
+    return null;
+  }
+  try {
+    return parseContextLayers(text, file);
+  } catch (error) {
+    if (!(error instanceof RangeError)) throw error;
+    io.stderr.write(`plumeplan run: --context-layers: ${error.message}\n`);
+    return null;
+  }
 }
 
 /** Default percentages of a standard's limit for --percent-of without --levels [%]. */

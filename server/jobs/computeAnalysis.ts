@@ -20,6 +20,7 @@ import { buildSweepFiles, computeSweep, type MemberLanes } from '../analyses/swe
 import { checkScenarioGeometry } from '../scenarioFiles/semantics.ts';
 import type { ResultFileContent } from '../storage/resultFiles.ts';
 import type { RunError } from '../storage/runStore.ts';
+import { buildComparisonReportFiles } from '../writers/comparisonReport.ts';
 import { buildSitingFiles } from '../writers/siting.ts';
 import { buildResultFiles } from '../writers/writeResultFolder.ts';
 import type { RunJob } from './runExecutor.ts';
@@ -178,7 +179,15 @@ async function computeCompare(job: RunJob, control: RunControl): Promise<ResultF
   const built = buildComparisonFiles(sideA, sideB, job.options.levels_ug_m3 as number[] | undefined, 'levels_ug_m3');
   const sideFiles = (prefix: string, side: ComparisonSide): [string, string][] =>
     buildResultFiles(side.scenario, side.result, built.sideOptions).contents.map(([name, text]) => [`${prefix}.${name}`, text]);
-  return asResultFiles([...built.files, ...sideFiles('a', sideA), ...sideFiles('b', sideB)]);
+  const reportFiles = await buildComparisonReportFiles({
+    a: { path: sideA.source, scenario: scenarioA, result: resultA },
+    b: { path: sideB.source, scenario: scenarioB, result: resultB },
+    comparison: built.comparison,
+    difference: built.difference,
+    levelsBasis: built.levelsBasis,
+    command: 'POST /api/runs {"kind": "compare"}',
+  });
+  return asResultFiles([...built.files, ...reportFiles, ...sideFiles('a', sideA), ...sideFiles('b', sideB)]);
 }
 
 async function computeSweepRun(job: RunJob, control: RunControl): Promise<ResultFileContent[]> {

@@ -5,8 +5,9 @@
  *
  * Good-engineering-practice height (40 CFR 51.100(ii) [read, via REFERENCES.md]): Hg = H + 1.5 L, with
  * H the building's height and L the lesser of its height and projected width. The wake reaches about
- * 5 L downwind of the building (the same rule's "nearby": within 5 L [read, via REFERENCES.md]), so a
- * stack within 5 L of the building is flagged as well.
+ * 5 L downwind of the building (the same rule's "nearby": within 5 L [from memory; REFERENCES.md gives the
+ * height only]), so a stack is flagged when it is below Hg OR within 5 L of the building: either alone puts
+ * its plume in the wake.
  */
 import type { Building, Source } from '../../scenarios/format/types.ts';
 
@@ -49,7 +50,7 @@ export interface DownwashFlag {
   belowGoodEngineeringPractice: boolean;
   /** stack within 5 L of the building */
   withinWake: boolean;
-  /** true when either holds: the run does not represent this stack's plume near the building */
+  /** true when either holds (below H + 1.5 L, or within 5 L): the run does not represent this stack's plume near the building */
   flagged: boolean;
   /** plain-language statement for the report */
   message: string;
@@ -71,7 +72,8 @@ export function downwashFlags(sources: readonly Source[], stackHeights_m: Readon
     const gep = goodEngineeringPracticeHeight(building);
     const below = stackHeight_m < gep.height_m;
     const within = building.distance_m < gep.nearbyDistance_m;
-    const flagged = below && within;
+    // either condition alone puts the plume in the wake (issue 10: "below GEP height or within 5 L")
+    const flagged = below || within;
     const reasons = [
       below ? `lower than the good-engineering-practice height ${round1(gep.height_m)} m (H + 1.5 L, 40 CFR 51.100(ii))` : null,
       within ? `within 5 L = ${round1(gep.nearbyDistance_m)} m of the building` : null,
@@ -79,9 +81,8 @@ export function downwashFlags(sources: readonly Source[], stackHeights_m: Readon
     const message = flagged
       ? `stack ${source.id} (${round1(stackHeight_m)} m) is ${reasons.join(' and ')}: building downwash is likely, ` +
         'which this screen does not represent; its figures near the building may be too low'
-      : below
-        ? `stack ${source.id} is ${reasons[0]}, but the building is ${round1(building.distance_m)} m away, beyond 5 L: not flagged`
-        : `stack ${source.id} (${round1(stackHeight_m)} m) reaches the good-engineering-practice height ${round1(gep.height_m)} m: not flagged`;
+      : `stack ${source.id} (${round1(stackHeight_m)} m) reaches the good-engineering-practice height ${round1(gep.height_m)} m ` +
+        `and stands ${round1(building.distance_m)} m from the building, beyond 5 L = ${round1(gep.nearbyDistance_m)} m: not flagged`;
     flags.push({
       sourceId: source.id,
       stackHeight_m,

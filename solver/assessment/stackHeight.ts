@@ -174,7 +174,13 @@ export async function findStackHeight(scenario: Scenario, spec: StackHeightSpec,
   if (!monotone) message += '; the PC rises again at some greater height run, so the curve is not monotone: check it';
   const flags = pass === null ? [] : downwashFlags(base.sources, new Map([[sourceId, pass]]));
   const downwash = flags.find((flag) => flag.sourceId === sourceId) ?? null;
-  if (downwash?.flagged) message += `; at ${pass} m the stack is still flagged for building downwash (good-engineering-practice height ${downwash.goodEngineeringPracticeHeight_m} m)`;
+  if (downwash?.flagged) {
+    const why = [
+      downwash.belowGoodEngineeringPractice ? `below the good-engineering-practice height ${downwash.goodEngineeringPracticeHeight_m} m` : null,
+      downwash.withinWake ? `within 5 L = ${downwash.nearbyDistance_m} m of the building` : null,
+    ].filter((reason) => reason !== null);
+    message += `; at ${pass} m the stack is still flagged for building downwash (${why.join(' and ')})`;
+  }
   control.onProgress?.(1, 'stack height: done');
   return {
     found: pass !== null,

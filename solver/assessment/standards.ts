@@ -56,7 +56,6 @@ export interface AssessedStandard extends AirQualityStandard {
   conversion: string | null;
   /**
    * null when plumeplan can compute this standard's statistic from an hourly series; otherwise why not
-   * (the rolling 8-hour mean for CO is not computed yet)
    */
   notComputed: string | null;
 }
@@ -110,10 +109,9 @@ export function assessmentPlan(assessment: Assessment, emittedPollutant: string)
         term,
         pcFactor: ratio,
         conversion: noxToNo2 === null ? null : `NO2 = ${ratio} x NOx (${term}-term ratio; ${ratioSource})`,
-        notComputed:
-          entry.statistic === 'maximum daily 8-hour running mean'
-            ? 'needs running 8-hour means, which plumeplan does not compute yet'
-            : null,
+        // the CO standard's statistic: each day's largest running 8-hour mean (../diagnostics/statistics.ts)
+        ...(entry.statistic === 'maximum daily 8-hour running mean' ? { runningMean: true } : {}),
+        notComputed: null,
       });
     }
   }

@@ -18,12 +18,20 @@ import { SCREENING_CAUTION } from '../caution.ts';
 import { lonLatConverter, resolveCrs, siteUtmCrs, type CrsRequest, type ExportCrs } from '../crs.ts';
 import { FIGURE_FONT_FAMILY } from '../fonts/fonts.ts';
 import { footprintBands, type FootprintCollection } from '../footprint.ts';
+import type { DifferenceCollection } from '../comparison.ts';
 import type { RunProvenance } from '../provenance.ts';
 import { findPeak } from '../summary.ts';
 import { escapeXml, groupedInteger, num, roundStep, wrapText } from './svgText.ts';
 
 /** Band fills from the lowest level to the highest (plumeplan's palette: straw, amber, terracotta, oxblood). */
 export const BAND_PALETTE = ['#f1e9c6', '#e8d38f', '#dfb062', '#d08a45', '#b86437', '#93412f', '#672331'] as const;
+
+/**
+ * The difference figure's diverging scale (plumeplan's own): increases (B above A) from pale blush to deep
+ * brick, decreases (B below A) from pale sea-glass to deep slate, each from the smallest level to the largest.
+ */
+export const INCREASE_PALETTE = ['#f7e1d7', '#eebda6', '#e09474', '#c9694a', '#a84532', '#7d2a23'] as const;
+export const DECREASE_PALETTE = ['#dcebe8', '#b4d5d1', '#83b7b6', '#56929a', '#35707f', '#1f4c60'] as const;
 
 /** Size of the figure in SVG user units (pixels at 1x). */
 export const MAP_WIDTH = 1000;
@@ -57,6 +65,22 @@ export interface MapFigureOptions {
   groundLevelHeight_m?: number;
   /** figure title; default "Ground-level <pollutant> <statistic>" */
   title?: string;
+  /** the line under the title; default the scenario's name */
+  subtitle?: string;
+  /**
+   * Draw a comparison's difference (B - A on this run's grid) instead of the run's own bands: increases and
+   * decreases on a diverging scale, a legend of the change in µg/m³, no point of maximum impact.
+   */
+  difference?: DifferenceMapBands;
+}
+
+/** What a difference figure draws (see ../comparisonFigure.ts). */
+export interface DifferenceMapBands {
+  /** difference.geojson's bands of |B - A|, each marked increase or decrease */
+  collection: DifferenceCollection;
+  /** largest increase and decrease over the grid [ug/m3] (the decrease as a negative number or zero) */
+  largestIncrease_ug_m3: number;
+  largestDecrease_ug_m3: number;
 }
 
 export interface MapFigure {
@@ -89,7 +113,8 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
       statistic: result.footprintStatistic,
     });
   const height_m = options.groundLevelHeight_m ?? footprint.properties.height_m;
-  const extent = chooseExtent(scenario, result, footprint, toCrs);
+  const difference = options.difference;
+  const extent = chooseExtent(scenario, result, difference?.collection ?? footprint, toCrs);
   const [west, south, east, north] = extent;
   const scale = FRAME.size / (east - west);
   const px = ([X, Y]: [number, number]): [number, number] => [FRAME.left + (X - west) * scale, FRAME.top + (north - Y) * scale];
@@ -100,7 +125,8 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
   const weatherWords = { steady: 'steady weather', hourly: 'hourly series, period mean', windRose: 'wind rose, frequency-weighted mean', screeningSet: 'screening weather set, highest hourly value' }[
     result.weatherKind
   ];
-  const title = options.title ?? `Ground-level ${pollutant} ${statisticWords}`;
+  const title = options.title ?? (difference !== undefined ? `Change in ground-level ${pollutant} ${statisticWords}, B − A` : `Ground-level ${pollutant} ${statisticWords}`);
+  const subtitle = options.subtitle ?? scenario.name;
 
   const out: string[] = [];
   out.push(
@@ -110,7 +136,7 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
     `<desc id="caution">${escapeXml(SCREENING_CAUTION)}</desc>`,
     `<rect width="${MAP_WIDTH}" height="${MAP_HEIGHT}" fill="#ffffff"/>`,
     `<text x="${FRAME.left}" y="32" font-size="19" font-weight="bold">${escapeXml(title)}</text>`,
-    `<text x="${FRAME.left}" y="54" font-size="12.5" fill="#5a524b">${escapeXml(truncate(scenario.name, 120))}</text>`,
+    `<text x="${FRAME.left}" y="54" font-size="12.5" fill="#5a524b">${escapeXml(truncate(subtitle, 120))}</text>`,
     `<defs><clipPath id="frame-clip"><rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.size}" height="${FRAME.size}"/></clipPath>`,
     `<pattern id="area-hatch" width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">` +
       `<line x1="0" y1="0" x2="0" y2="6" stroke="${INK}" stroke-width="1.1"/></pattern></defs>`,
@@ -119,21 +145,22 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
 
   // Everything geographic is clipped to the frame.
   out.push('<g clip-path="url(#frame-clip)">');
-  out.push(...bandPaths(footprint, project));
+  out.push(...(difference !== undefined ? differencePaths(difference.collection, project) : bandPaths(footprint, project)));
   out.push(...graticule(extent, px));
   for (const layer of options.contextLayers ?? []) out.push(...contextPaths(layer, project));
   out.push(...gridOutline(result, toCrs, px));
   out.push(...siteBoundaryPath(scenario, project));
   out.push(...areaSourcePaths(scenario, project));
   out.push(...pointSourceSymbols(scenario, project));
-  out.push(...peakSymbol(result, project));
+  if (difference === undefined) out.push(...peakSymbol(result, project));
   out.push(...receptorSymbols(scenario, project));
   out.push('</g>');
   out.push(`<rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.size}" height="${FRAME.size}" fill="none" stroke="${INK}" stroke-width="1.2"/>`);
   out.push(...tickLabels(extent, px, crs));
   out.push(...scaleBar(extent, scale, converter, result));
   out.push(...northArrow(extent, converter));
-  out.push(...legend(footprint, scenario, result, { pollutant, statisticWords, weatherWords, height_m, contextLayers: options.contextLayers ?? [] }));
+  const legendWords = { pollutant, statisticWords, weatherWords, height_m, contextLayers: options.contextLayers ?? [] };
+  out.push(...(difference !== undefined ? differenceLegend(difference, scenario, legendWords) : legend(footprint, scenario, result, legendWords)));
   out.push(...cautionBlock(crs, options.provenance));
   out.push('</svg>');
   return { svg: `${out.join('\n')}\n`, width: MAP_WIDTH, height: MAP_HEIGHT, crs, extent };
@@ -150,7 +177,7 @@ function truncate(text: string, length: number): string {
 function chooseExtent(
   scenario: Scenario,
   result: ScenarioRunResult,
-  footprint: FootprintCollection,
+  footprint: { features: readonly { geometry: Geometry }[] },
   toCrs: (lon: number, lat: number) => [number, number],
 ): [number, number, number, number] {
   const grid = result.grid;
@@ -532,5 +559,94 @@ function cautionBlock(crs: ExportCrs, provenance: RunProvenance | undefined): st
       `drawn in EPSG:${crs.epsg}`;
     out.push(`<text class="provenance" x="40" y="${MAP_HEIGHT - 8}" font-size="9.5" fill="#6b6259">${escapeXml(footnote)}</text>`);
   }
+  return out;
+}
+
+/** Fill of level k of n on one side of the diverging scale: the largest level always the deepest colour. */
+export function differenceColour(change: 'increase' | 'decrease', k: number, n: number): string {
+  const palette = change === 'increase' ? INCREASE_PALETTE : DECREASE_PALETTE;
+  if (n <= 1) return palette[palette.length - 1];
+  const index = n >= palette.length ? Math.round((k * (palette.length - 1)) / (n - 1)) : palette.length - n + k;
+  return palette[index];
+}
+
+function differencePaths(collection: DifferenceCollection, project: (p: Position) => [number, number]): string[] {
+  const levels = collection.properties.levels_ug_m3;
+  return collection.features.map((feature) => {
+    const { change, lower_ug_m3, upper_ug_m3 } = feature.properties;
+    const k = levels.indexOf(lower_ug_m3);
+    return (
+      `<path class="difference-band" data-change="${change}" data-lower-ug-m3="${lower_ug_m3}" data-upper-ug-m3="${upper_ug_m3 ?? ''}" ` +
+      `d="${pathOfRings(ringsOf(feature.geometry), project, true)}" fill="${differenceColour(change, k, levels.length)}" fill-rule="evenodd" ` +
+      `stroke="#6b625a" stroke-width="0.5" stroke-opacity="0.6"/>`
+    );
+  });
+}
+
+/** The difference figure's legend: the change in µg/m³ on the diverging scale, largest increase on top. */
+function differenceLegend(
+  difference: DifferenceMapBands,
+  scenario: Scenario,
+  words: { pollutant: string; statisticWords: string; weatherWords: string; height_m: number; contextLayers: ContextLayer[] },
+): string[] {
+  const out = [`<g class="legend difference-legend" transform="translate(${PANEL_LEFT} ${FRAME.top})">`];
+  let y = 8;
+  out.push(`<text x="0" y="${y}" font-size="13" font-weight="bold">${escapeXml(`Change in ${words.pollutant}, B − A`)}</text>`);
+  y += 17;
+  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">µg/m³ at ${num(words.height_m, 1)} m above ground</text>`);
+  y += 15;
+  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">${escapeXml(`${words.statisticWords}, on A's grid`)}</text>`);
+  y += 14;
+  const levels = difference.collection.properties.levels_ug_m3;
+  const drawn = new Set(difference.collection.features.map((feature) => `${feature.properties.change} ${feature.properties.lower_ug_m3}`));
+  if (levels.length === 0) {
+    y += 16;
+    out.push(`<text x="0" y="${y}" font-size="11">no bands: B equals A everywhere</text>`);
+  }
+  const entry = (change: 'increase' | 'decrease', k: number): void => {
+    y += 22;
+    const upper = k + 1 < levels.length ? levels[k + 1] : null;
+    const sign = change === 'increase' ? '+' : '−';
+    const label = upper === null ? `${sign}${levels[k]} and beyond` : `${sign}${levels[k]} to ${sign}${upper}`;
+    out.push(
+      `<rect class="legend-band" data-change="${change}" x="0" y="${y - 13}" width="30" height="17" fill="${differenceColour(change, k, levels.length)}" stroke="#6b625a" stroke-width="0.6"/>`,
+      `<text x="40" y="${y}" font-size="12">${escapeXml(label)}${drawn.has(`${change} ${levels[k]}`) ? '' : ' (not reached)'}</text>`,
+    );
+  };
+  if (levels.length > 0) {
+    y += 18;
+    out.push(`<text x="0" y="${y}" font-size="11.5" font-weight="bold">increase (B above A)</text>`);
+    for (let k = levels.length - 1; k >= 0; k -= 1) entry('increase', k);
+    y += 24;
+    out.push(`<text x="0" y="${y}" font-size="11.5" font-weight="bold">decrease (B below A)</text>`);
+    for (let k = 0; k < levels.length; k += 1) entry('decrease', k);
+  }
+  y += 22;
+  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">largest increase ${difference.largestIncrease_ug_m3 === 0 ? '0' : `+${difference.largestIncrease_ug_m3}`} µg/m³</text>`);
+  y += 14;
+  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">largest decrease ${difference.largestDecrease_ug_m3 === 0 ? '0' : `−${Math.abs(difference.largestDecrease_ug_m3)}`} µg/m³</text>`);
+  y += 24;
+  out.push(`<line x1="0" y1="${y - 12}" x2="250" y2="${y - 12}" stroke="#d8d0c4"/>`);
+  const symbol = (drawing: string, text: string): void => {
+    y += 20;
+    out.push(drawing.replaceAll('Y0', String(y - 4)), `<text x="40" y="${y}" font-size="12">${escapeXml(text)}</text>`);
+  };
+  if (scenario.sources.some((source) => source.kind === 'point')) {
+    symbol(`<path d="${diamond(15, 0, 7)}" transform="translate(0 Y0)" fill="#ffffff" stroke="${INK}" stroke-width="2"/>`, "stack (A's sources)");
+  }
+  if (scenario.sources.some((source) => source.kind === 'area')) {
+    symbol(`<rect x="4" y="-7" width="22" height="14" transform="translate(0 Y0)" fill="url(#area-hatch)" stroke="${INK}" stroke-width="1.4"/>`, 'area source');
+  }
+  if (scenario.receptors.length > 0) {
+    symbol(`<circle cx="15" cy="Y0" r="5" fill="#ffffff" stroke="${RECEPTOR_COLOUR}" stroke-width="2.4"/>`, 'receptor (labelled by id)');
+  }
+  if (scenario.site.boundary !== undefined) {
+    symbol(`<rect x="4" y="-7" width="22" height="14" transform="translate(0 Y0)" fill="none" stroke="${INK}" stroke-width="1.6" stroke-dasharray="2 3"/>`, 'site boundary');
+  }
+  symbol(`<line x1="2" y1="Y0" x2="28" y2="Y0" stroke="#8c8379" stroke-width="1.5" stroke-dasharray="8 4"/>`, "edge of A's modelled grid");
+  for (const layer of words.contextLayers) {
+    symbol(`<line x1="2" y1="Y0" x2="28" y2="Y0" stroke="${CONTEXT_COLOUR}" stroke-width="1"/>`, truncate(layer.name, 30));
+  }
+  out.push('</g>');
   return out;
 }

@@ -8,6 +8,9 @@
  */
 import type { Scenario } from '../../../scenarios/format/types.ts';
 import type { ScenarioRunResult } from '../../../solver/drivers/types.ts';
+import type { LevelArea } from '../../../solver/assessment/footprintAreas.ts';
+import type { PointVerdict, ScreeningVerdicts, StandardVerdict } from '../../../solver/assessment/verdicts.ts';
+import { footprintLevelAreas, OUTCOME_WORDS } from '../assessmentFigures.ts';
 import { SCREENING_CAUTION } from '../caution.ts';
 import { lonLatConverter, siteUtmCrs, type ExportCrs } from '../crs.ts';
 import type { FootprintCollection } from '../footprint.ts';
@@ -97,6 +100,7 @@ export function buildReportModel(input: ReportInput): ReportModel {
     sections: [
       mapSection(input),
       receptorSection(input),
+      ...verdictSection(input),
       peakSection(input),
       areaSection(input),
       sourceSection(scenario, result),
@@ -129,13 +133,11 @@ function mapSection(input: ReportInput): ReportSection {
 
 function receptorSection(input: ReportInput): ReportSection {
   const { scenario, result } = input;
-  const assessment = result.extraSummary.assessment as
-    | { standards?: StandardSummary[]; note?: string; definitions?: string }
-    | undefined;
-  // A series or a wind rose gives each standard's statistic per receptor; steady weather gives the scenario's
-  // standards back with a note (one hour of one weather is no standard's statistic).
-  const evaluated = assessment?.standards !== undefined && assessment.standards.every((standard) => Array.isArray(standard.receptors));
-  // With the standards' own table below, this table keeps to the period mean and the highest hour.
+  const assessment = result.extraSummary.assessment as { standards?: unknown[]; note?: string } | undefined;
+  const verdicts = input.summary.verdicts as ScreeningVerdicts | undefined;
+  // A series or a wind rose gives each standard's statistic per receptor: those columns are read in the
+  // screening verdicts below, so this table keeps to the period mean and the highest hour.
+  const evaluated = verdicts !== undefined || (assessment?.standards !== undefined && assessment.standards.every((standard) => Array.isArray((standard as { receptors?: unknown }).receptors)));
   const keys = result.receptorColumns
     .map((column) => column.key)
     .filter((key) => !evaluated || key === 'mean_ug_m3' || key === 'max_ug_m3' || key === 'concentration_ug_m3');
@@ -166,44 +168,98 @@ function receptorSection(input: ReportInput): ReportSection {
     },
   ];
   const paragraphs: string[] = [];
-  if (evaluated && assessment?.standards !== undefined) {
-    const standardRows: string[][] = [];
-    for (const standard of assessment.standards) {
-      for (const receptor of standard.receptors) {
-        standardRows.push([
-          receptor.id,
-          `${standard.name} (${fig(standard.limit_ug_m3)})`,
-          standard.statistic,
-          fig(receptor.pc_ug_m3),
-          fig(receptor.pcPercentOfLimit),
-          fig(receptor.pec_ug_m3),
-          fig((100 * receptor.pec_ug_m3) / standard.limit_ug_m3),
-          receptor.meetsStandard ? 'below the limit' : 'above the limit',
-          receptor.pcInsignificant ? 'yes' : 'no',
-        ]);
-      }
-    }
-    tables.push({
-      id: 'standards',
-      caption: 'Receptors against the air-quality standards',
-      headings: ['id', 'standard (limit µg/m³)', 'statistic', 'PC [µg/m³]', 'PC % of limit', 'PEC [µg/m³]', 'PEC % of limit', 'screening verdict', 'PC insignificant'],
-      numeric: [false, false, false, true, true, true, true, false, false],
-      rows: standardRows,
-      widths: [1.1, 1.8, 1.6, 0.9, 0.8, 0.9, 0.8, 1.1, 0.9],
-      note: assessment.definitions,
-    });
-  } else if (assessment?.note !== undefined) {
-    paragraphs.push(`Standards: ${assessment.note}.`);
-  }
+  if (verdicts === undefined && assessment?.note !== undefined) paragraphs.push(`Standards: ${assessment.note}.`);
   return { id: 'receptors', heading: 'Receptor results', paragraphs, tables };
 }
 
-interface StandardSummary {
-  name: string;
-  limit_ug_m3: number;
-  statistic: string;
-  receptors: { id: string; pc_ug_m3: number; pec_ug_m3: number; pcPercentOfLimit: number; meetsStandard: boolean; pcInsignificant: boolean }[];
+/** A verdict in words: the outcome and the stage that decided it, with its threshold. */
+export function verdictWords(verdict: PointVerdict): string {
+  const { stage1, stage2 } = verdict;
+  if (verdict.outcome === 'indicative') {
+    return `${OUTCOME_WORDS.indicative}: PC ${stage1.passed ? 'below' : 'not below'} ${stage1.threshold_pct} % for this weather`;
+  }
+  if (stage1.passed) return `${OUTCOME_WORDS[verdict.outcome]}: PC < ${stage1.threshold_pct} %`;
+  if (stage2?.passed) return `${OUTCOME_WORDS[verdict.outcome]}: PEC < ${stage2.threshold_pct} %`;
+  const failed = stage2 === null ? `PC ≥ ${stage1.threshold_pct} %` : `PC ≥ ${stage1.threshold_pct} %, PEC ≥ ${stage2.threshold_pct} %`;
+  return `${OUTCOME_WORDS[verdict.outcome]}: ${failed}`;
 }
+
+/** Where the point of maximum impact was taken, in words. */
+function maximumPlace(standard: StandardVerdict): string {
+  const maximum = standard.maximum!;
+  if (maximum.where === 'receptors') return `maximum over receptors (${maximum.receptorId ?? '-'})`;
+  const off = maximum.searched?.startsWith('off the site') === true;
+  const at = `${Math.round(Math.abs(maximum.x_m))} m ${maximum.x_m < 0 ? 'W' : 'E'}, ${Math.round(Math.abs(maximum.y_m))} m ${maximum.y_m < 0 ? 'S' : 'N'}`;
+  return `${off ? 'maximum off the site' : 'maximum on the grid'} (${at})`;
+}
+
+/**
+ * The screening verdicts (summary.json's, rounded as written there): for each standard with figures, the
+ * point of maximum impact and every receptor with PC, PC as % of the standard, background, PEC, PEC as %
+ * of the standard and the screen's outcome; standards the weather gives no figure for say why.
+ */
+function verdictSection(input: ReportInput): ReportSection[] {
+  const verdicts = input.summary.verdicts as ScreeningVerdicts | undefined;
+  if (verdicts === undefined) return [];
+  const t = verdicts.thresholds;
+  const paragraphs = [
+    `The ${verdicts.label}. Stage 1: PC below ${t.pcLongTerm_pct} % of a long-term or ${t.pcShortTerm_pct} % of a short-term standard; ` +
+      `stage 2 (long-term standards not cleared at stage 1): PEC below ${t.pecLongTerm_pct} % of the standard. ` +
+      `Background ${fig(verdicts.background_ug_m3)} µg/m³ (from the scenario)` +
+      (verdicts.noxToNo2 !== null
+        ? `; NO2 taken as ${verdicts.noxToNo2.longTerm} (long-term) and ${verdicts.noxToNo2.shortTerm} (short-term) times NOx (${verdicts.noxToNo2.source}).`
+        : '.'),
+  ];
+  const overview: ReportTable = {
+    id: 'standards',
+    caption: 'Standards assessed and the screen at the point of maximum impact',
+    headings: ['standard', 'limit [µg/m³]', 'statistic', 'what the figures are', 'at the maximum'],
+    numeric: [false, true, false, false, false],
+    rows: verdicts.standards.map((standard) => [
+      `${standard.name} (${standard.setTitle})`,
+      fig(standard.limit_ug_m3),
+      `${standard.statistic}, ${standard.averaging_h} h${standard.allowedExceedances > 0 ? `, ${standard.allowedExceedances} exceedances allowed` : ''}${standard.conversion !== null ? `; ${standard.conversion}` : ''}`,
+      standard.maximum !== undefined ? standard.basisNote : `no figure: ${standard.reason ?? 'the run gave none'}`,
+      standard.maximum !== undefined ? verdictWords(standard.maximum) : '-',
+    ]),
+    widths: [1.6, 0.7, 1.6, 3, 1.5],
+  };
+  const tables: ReportTable[] = [overview];
+  verdicts.standards.forEach((standard, index) => {
+    if (standard.maximum === undefined) return;
+    const row = (place: string, verdict: PointVerdict): string[] => [
+      place,
+      fig(verdict.pc_ug_m3),
+      String(verdict.pcPercentOfStandard),
+      fig(verdict.background_ug_m3),
+      fig(verdict.pec_ug_m3),
+      String(verdict.pecPercentOfStandard),
+      verdictWords(verdict),
+    ];
+    tables.push({
+      id: `verdicts-${index + 1}`,
+      caption: `${standard.name}: limit ${fig(standard.limit_ug_m3)} µg/m³ of ${standard.assessedPollutant}`,
+      headings: ['place', 'PC [µg/m³]', 'PC % of standard', 'background [µg/m³]', 'PEC [µg/m³]', 'PEC % of standard', 'screening verdict'],
+      numeric: [false, true, true, true, true, true, false],
+      rows: [
+        row(maximumPlace(standard), standard.maximum),
+        ...(standard.receptors ?? []).map((receptor) => row(receptor.id, receptor)),
+      ],
+      widths: [2.2, 0.8, 0.8, 1.1, 0.8, 0.8, 2],
+      note: `Source of the standard: ${standard.source}. Percentages to 2 significant figures; PC and PEC to 3.`,
+    });
+  });
+  return [
+    {
+      id: 'verdicts',
+      heading: 'Screening verdicts',
+      paragraphs,
+      tables,
+      after: ['A screening aid as commonly applied in permit guidance; not a legal decision and not a regulatory assessment.'],
+    },
+  ];
+}
+
 
 function peakSection(input: ReportInput): ReportSection {
   const { peak } = input.summary;
@@ -219,7 +275,10 @@ function peakSection(input: ReportInput): ReportSection {
         'It is a cell value: the true maximum may lie anywhere in that cell and be higher.',
       `Where it was looked for: ${peak.where}.`,
       ...(peak.onSite !== undefined
-        ? [`${peak.onSite.label}: ${peak.onSite.concentration_ug_m3} µg/m³ at lat ${peak.onSite.lat}, lon ${peak.onSite.lon}.`]
+        ? [
+            `The highest value on the site is ${peak.onSite.concentration_ug_m3} µg/m³, at lat ${peak.onSite.lat}, lon ${peak.onSite.lon} ` +
+              `(${peak.onSite.label}).`,
+          ]
         : []),
     ],
     tables: [],
@@ -227,35 +286,41 @@ function peakSection(input: ReportInput): ReportSection {
 }
 
 /**
- * Ground area at or above each footprint level, counted by grid cells (each cell whose value is at or
- * above the level counts its whole area): the resolution of the figure is one cell, spacing squared.
+ * Footprint level areas, from the assessment's level arithmetic (footprintLevelAreas, the figures
+ * summary.json lists): for each level the ground at or above it in ha and m², the farthest distance from
+ * each source and the receptors inside, to 2 significant figures.
  */
-export function areasAtOrAbove_m2(field: ArrayLike<number>, spacing_m: number, levels: readonly number[]): number[] {
-  const counts = levels.map(() => 0);
-  for (let index = 0; index < field.length; index += 1) {
-    const value = field[index];
-    for (let k = 0; k < levels.length; k += 1) if (value >= levels[k]) counts[k] += 1;
-  }
-  return counts.map((count) => count * spacing_m * spacing_m);
-}
-
 function areaSection(input: ReportInput): ReportSection {
   const levels = input.footprint.properties.levels_ug_m3;
-  const areas = areasAtOrAbove_m2(input.result.footprint_ug_m3, input.result.grid.spacing_m, levels);
-  const cell_ha = (input.result.grid.spacing_m * input.result.grid.spacing_m) / 10_000;
+  const areas: LevelArea[] =
+    input.summary.footprint.areas.length === levels.length ? input.summary.footprint.areas : footprintLevelAreas(input.scenario, input.result, levels);
+  const sourceIds = input.result.sources.map((source) => source.id);
+  const atLeast = (entry: LevelArea): string => (entry.reachesGridEdge ? '≥ ' : '');
+  const basis = input.summary.footprint.levelsBasis;
   return {
     id: 'areas',
     heading: 'Footprint areas',
-    paragraphs: [],
+    paragraphs: basis !== undefined ? [`Levels: ${basis}.`] : [],
     tables: [
       {
         id: 'areas',
-        caption: 'Ground area at or above each level',
-        headings: ['level [µg/m³]', 'area [ha]', 'area [km²]', 'cells'],
-        numeric: [true, true, true, true],
-        rows: levels.map((level, k) => [fig(level), fig(areas[k] / 10_000), fig(areas[k] / 1e6), String(Math.round(areas[k] / (input.result.grid.spacing_m ** 2)))]),
-        widths: [1, 1, 1, 1],
-        note: `Counted by grid cells (${fig(cell_ha)} ha each); an area that reaches the edge of the grid may continue beyond it.`,
+        caption: 'Ground at or above each level',
+        headings: ['level [µg/m³]', 'area [ha]', 'area [m²]', ...sourceIds.map((id) => `farthest from ${id} [m]`), 'receptors inside'],
+        numeric: [true, true, true, ...sourceIds.map(() => true), false],
+        rows: areas.map((entry) => [
+          fig(entry.level_ug_m3),
+          `${atLeast(entry)}${entry.area_ha}`,
+          `${atLeast(entry)}${entry.area_m2}`,
+          ...sourceIds.map((id) => {
+            const distance = entry.farthest.find((f) => f.sourceId === id)?.distance_m ?? null;
+            return distance === null ? '-' : `${atLeast(entry)}${distance}`;
+          }),
+          entry.receptorsInside.length > 0 ? entry.receptorsInside.join(', ') : 'none',
+        ]),
+        widths: [0.9, 0.8, 1, ...sourceIds.map(() => 1), 2],
+        note:
+          'Areas and distances to 2 significant figures. "≥": the level reaches the edge of the grid, so the ground at or above it ' +
+          'goes on beyond it and the figure is a lower bound; a larger domain would show where it ends.',
       },
     ],
   };

@@ -114,7 +114,10 @@ function drawSection(doc: Doc, section: ReportSection): void {
   // Keep the heading with what follows it: the paragraphs and the first table when that table is short.
   doc.font(REGULAR).fontSize(9.5);
   let following = section.paragraphs.reduce((sum, text) => sum + doc.heightOfString(text, { width: textWidth(doc) }) + 5, 0);
-  if (section.figure === undefined && section.tables.length > 0) {
+  if (section.figure !== undefined) {
+    // keep the heading with its figure: a heading alone at the foot of a page reads as a lost section
+    following += (0.8 * figureWidth(doc, section) * section.figure.height) / section.figure.width + 30;
+  } else if (section.tables.length > 0) {
     const first = tableHeight(doc, section.tables[0]);
     if (first < (pageBottom(doc) - doc.page.margins.top) / 2) following += first;
   }
@@ -122,15 +125,20 @@ function drawSection(doc: Doc, section: ReportSection): void {
   heading(doc, section.heading);
   for (const text of section.paragraphs) paragraph(doc, text);
   if (section.figure !== undefined) {
-    const fullWidth = textWidth(doc);
-    const width = section.id === 'map' ? fullWidth : Math.min(fullWidth, 300);
+    let width = figureWidth(doc, section);
+    // A full-width figure that nearly fits under what is above it is drawn a little smaller (down to 80 %)
+    // rather than leaving most of the page empty.
+    const room = pageBottom(doc) - doc.y - 30 - 24;
+    const full = (width * section.figure.height) / section.figure.width;
+    if (full > room && full * 0.8 <= room) width = (room / full) * width;
     const height = (width * section.figure.height) / section.figure.width;
     ensureRoom(doc, height + 30);
     const top = doc.y;
     // The figure's own width and height (in px) would fix its size; give the root the size wanted here and
     // keep its viewBox, so the drawing scales into it.
     const svg = section.figure.svg.replace(/^<svg([^>]*?) width="[^"]*" height="[^"]*"/, `<svg$1 width="${width}" height="${height}"`);
-    SVGtoPDF(doc, svg, doc.page.margins.left, top, {
+    const left = doc.page.margins.left + (section.id === 'map' ? (textWidth(doc) - width) / 2 : 0);
+    SVGtoPDF(doc, svg, left, top, {
       width,
       height,
       assumePt: true,
@@ -141,6 +149,11 @@ function drawSection(doc: Doc, section: ReportSection): void {
   }
   for (const table of section.tables) drawTable(doc, table);
   for (const text of section.after ?? []) paragraph(doc, text, { size: 8, colour: MUTED });
+}
+
+/** Width a section's figure is drawn at: the map across the page, other figures (the wind rose) smaller. */
+function figureWidth(doc: Doc, section: ReportSection): number {
+  return section.id === 'map' ? textWidth(doc) : Math.min(textWidth(doc), 300);
 }
 
 /** Height a table takes when drawn whole: caption, heading row and every row. */

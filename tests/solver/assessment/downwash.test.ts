@@ -20,16 +20,45 @@ describe('good-engineering-practice height (40 CFR 51.100(ii))', () => {
   });
 });
 
-describe('downwashFlags', () => {
-  it('flags a stack below H + 1.5 L within 5 L of the building, and no other', () => {
-    const building = { height_m: 30, width_m: 50, distance_m: 40 };
-    const [low] = downwashFlags([stack(60, building)]);
-    expect(low).toMatchObject({ flagged: true, belowGoodEngineeringPractice: true, withinWake: true, goodEngineeringPracticeHeight_m: 75 });
-    expect(low.message).toMatch(/downwash is likely/);
-    expect(downwashFlags([stack(75, building)])[0].flagged).toBe(false);
-    expect(downwashFlags([stack(60, { ...building, distance_m: 200 })])[0].flagged).toBe(false);
+describe('downwashFlags: below H + 1.5 L or within 5 L (issue 10)', () => {
+  // the worked building: 30 m high, 50 m wide -> Hg = 75 m, 5 L = 150 m (40 CFR 51.100(ii); 5 L as the issue states it)
+  const near = { height_m: 30, width_m: 50, distance_m: 40 };
+  const far = { ...near, distance_m: 200 };
+
+  it('flags a stack that is both below Hg and within 5 L, naming both', () => {
+    const [flag] = downwashFlags([stack(60, near)]);
+    expect(flag).toMatchObject({ flagged: true, belowGoodEngineeringPractice: true, withinWake: true, goodEngineeringPracticeHeight_m: 75, nearbyDistance_m: 150 });
+    expect(flag.message).toMatch(/lower than the good-engineering-practice height 75 m .* and within 5 L = 150 m of the building: building downwash is likely/);
+  });
+
+  it('flags a stack below Hg even when the building is beyond 5 L', () => {
+    const [flag] = downwashFlags([stack(60, far)]);
+    expect(flag).toMatchObject({ flagged: true, belowGoodEngineeringPractice: true, withinWake: false });
+    expect(flag.message).toMatch(/lower than the good-engineering-practice height 75 m.*: building downwash is likely/);
+    expect(flag.message).not.toMatch(/within 5 L/);
+  });
+
+  it('flags a stack at or above Hg when it stands within 5 L of the building', () => {
+    for (const height of [75, 80]) {
+      const [flag] = downwashFlags([stack(height, near)]);
+      expect(flag).toMatchObject({ flagged: true, belowGoodEngineeringPractice: false, withinWake: true });
+      expect(flag.message).toMatch(/within 5 L = 150 m of the building: building downwash is likely/);
+    }
+  });
+
+  it('does not flag a stack at or above Hg beyond 5 L, nor a stack without a building', () => {
+    for (const height of [75, 80]) {
+      const [flag] = downwashFlags([stack(height, far)]);
+      expect(flag).toMatchObject({ flagged: false, belowGoodEngineeringPractice: false, withinWake: false });
+      expect(flag.message).toMatch(/reaches the good-engineering-practice height 75 m and stands 200 m from the building, beyond 5 L = 150 m: not flagged/);
+    }
+    // 5 L exactly is not within (the rule reads "within", a strict bound as written here)
+    expect(downwashFlags([stack(80, { ...near, distance_m: 150 })])[0].flagged).toBe(false);
     expect(downwashFlags([stack(60)])).toEqual([]);
-    // a searched stack height replaces the source's own
-    expect(downwashFlags([stack(60, building)], new Map([['stack', 80]]))[0].flagged).toBe(false);
+  });
+
+  it('a searched stack height replaces the source\'s own', () => {
+    expect(downwashFlags([stack(60, far)], new Map([['stack', 80]]))[0].flagged).toBe(false);
+    expect(downwashFlags([stack(80, far)], new Map([['stack', 60]]))[0].flagged).toBe(true);
   });
 });

@@ -19,6 +19,9 @@ import { buildReportModel, type ReportModel } from '../../../../server/writers/r
 import { writeReportPdf } from '../../../../server/writers/report/reportPdf.ts';
 import { buildSummary } from '../../../../server/writers/summary.ts';
 import { makePackScenario, packRunResult } from '../packFixture.ts';
+import { runScenario } from '../../../../solver/drivers/runScenario.ts';
+import type { ResultSummary } from '../../../../server/writers/summary.ts';
+import type { LevelArea } from '../../../../solver/assessment/footprintAreas.ts';
 
 const scratch = mkdtempSync(path.join(tmpdir(), 'plumeplan-report-'));
 afterAll(() => rmSync(scratch, { recursive: true, force: true }));
@@ -40,6 +43,83 @@ beforeAll(async () => {
   model = buildReportModel({ scenario, result, summary, footprint, map, provenance });
   pdfFile = path.join(scratch, 'report.pdf');
   writeFileSync(pdfFile, await writeReportPdf(model));
+});
+
+/**
+ * The same site with an assessment: one user-defined hourly standard (200 ug/m3, the NO2 1-hour limit
+ * value of EU 2008/50/EC annex XI, REFERENCES.md) and a background of 20 ug/m3, and a site boundary
+ * around the stack so the point of maximum impact is taken off the site.
+ */
+describe('report with an assessment: verdicts and footprint areas', () => {
+  const assessed = {
+    ...makePackScenario(),
+    site: {
+      ...makePackScenario().site,
+      boundary: [
+        [-2.2855, 54.0604],
+        [-2.2830, 54.0604],
+        [-2.2830, 54.0618],
+        [-2.2855, 54.0618],
+        [-2.2855, 54.0604],
+      ] as [number, number][],
+    },
+    assessment: { background_ug_m3: 20, standards: [{ name: 'NO2 1-hour mean', limit_ug_m3: 200, averaging_h: 1, allowedExceedances: 18 }] },
+  };
+  let assessedModel: ReportModel;
+  let assessedSummary: ResultSummary;
+  let text: string;
+
+  beforeAll(async () => {
+    const result = await runScenario(assessed, { mode: 'gaussian' });
+    const footprint = footprintBands(result.footprint_ug_m3, result.grid, { scenarioName: assessed.name, levels_ug_m3: [0.5, 2, 5], site: result.site ?? null });
+    assessedSummary = buildSummary(assessed, result, { levels_ug_m3: footprint.properties.levels_ug_m3 });
+    const map = renderMapSvg(assessed, result, { footprint, provenance });
+    assessedModel = buildReportModel({ scenario: assessed, result, summary: assessedSummary, footprint, map, provenance });
+    const file = path.join(scratch, 'assessed.pdf');
+    writeFileSync(file, await writeReportPdf(assessedModel));
+    text = execFileSync('pdftotext', ['-layout', file, '-'], { encoding: 'utf8' });
+  });
+
+  it('pdftotext finds the verdict table: PC, % of the standard, background, PEC, % and verdict at the maximum and every receptor', () => {
+    expect(text).toContain('Screening verdicts');
+    expect(text).toContain('NO2 1-hour mean: limit 200 µg/m³');
+    const lines = text.split('\n');
+    for (const receptor of assessed.receptors) {
+      const pc = Number(assessedSummary.receptors.find((r) => r.id === receptor.id)!.concentration_ug_m3);
+      // by the definitions: % of standard = 100 PC / limit; PEC = PC + background (2 and 3 significant figures)
+      const pcPercent = Number(((100 * pc) / 200).toPrecision(2));
+      const pec = Number((pc + 20).toPrecision(3));
+      const pecPercent = Number(((100 * (pc + 20)) / 200).toPrecision(2));
+      const row = lines.find((line) => line.trimStart().startsWith(`${receptor.id} `) && line.includes('indicative'));
+      expect(row, receptor.id).toBeDefined();
+      const numbers = row!.replace(receptor.id, ' ').match(/\d+(\.\d+)?/g)!.map(Number);
+      expect(numbers.slice(0, 5)).toEqual([pc, pcPercent, 20, pec, pecPercent]);
+      expect(row).toContain('indicative only');
+    }
+    const maximum = lines.find((line) => line.trimStart().startsWith('maximum off the site'));
+    expect(maximum).toBeDefined();
+    expect(maximum).toContain(String(assessedSummary.peak.concentration_ug_m3));
+  });
+
+  it('lists each footprint level with its area, farthest distances and receptors inside, as summary.json does', () => {
+    const table = assessedModel.sections.find((section) => section.id === 'areas')!.tables[0];
+    const areas = assessedSummary.footprint.areas as LevelArea[];
+    expect(table.rows).toHaveLength(areas.length);
+    areas.forEach((entry, k) => {
+      expect(table.rows[k][1].replace('≥ ', '')).toBe(String(entry.area_ha));
+      expect(table.rows[k][1].startsWith('≥')).toBe(entry.reachesGridEdge);
+      expect(table.rows[k].at(-1)).toBe(entry.receptorsInside.length > 0 ? entry.receptorsInside.join(', ') : 'none');
+    });
+    expect(text).toContain('farthest from');
+    expect(text).toContain('receptors inside');
+  });
+
+  it('every paragraph starts with a capital letter (the on-site peak sentence included)', () => {
+    const paragraphs = assessedModel.sections.flatMap((section) => [...section.paragraphs, ...(section.after ?? [])]);
+    const onSite = paragraphs.find((paragraph) => paragraph.includes('on the site is'));
+    expect(onSite).toBeDefined();
+    for (const paragraph of paragraphs) expect(paragraph, paragraph).toMatch(/^[A-Z]/);
+  });
 });
 
 describe('report.pdf', () => {
