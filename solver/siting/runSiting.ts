@@ -194,13 +194,6 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   const level_ug_m3 = options.level_ug_m3 ?? (standard !== null && threshold_percent !== null ? (standard.limit_ug_m3 * threshold_percent) / 100 : null);
   if (level_ug_m3 !== null && !(level_ug_m3 > 0 && Number.isFinite(level_ug_m3))) throw new RangeError(`level is ${level_ug_m3} ug/m3; allowed: a finite level > 0`);
 
-  // The map.
-  const base = { ...steadyInput(scenario, geometry, weathers[0].weather), receptors };
-  const mapOptions = { combination: options.combination, control: partOfProgress(control, 0, 2, 'siting map') };
-  const mapStarted = performance.now();
-  const { map, pcAt } = mode === 'grid' ? gridSitingMap(base, stack, weathers, mapOptions) : gaussianSitingMap(base, stack, weathers, mapOptions);
-  const mapSeconds = (performance.now() - mapStarted) / 1000;
-
   // The site polygon and the best position.
   const polygon = options.sitePolygon ?? scenario.site.boundary;
   const polygonField = options.sitePolygon !== undefined ? 'site polygon' : 'site.boundary';
@@ -229,6 +222,13 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
     if (ids.has(id)) throw new RangeError(`candidates: the id "${id}" is given twice; allowed: unique ids`);
     ids.add(id);
   }
+  // The map.
+  const base = { ...steadyInput(scenario, geometry, weathers[0].weather), receptors };
+  const mapOptions = { combination: options.combination, control: partOfProgress(control, 0, 2, 'siting map'), exactAt: positions };
+  const mapStarted = performance.now();
+  const { map, pcAt } = mode === 'grid' ? gridSitingMap(base, stack, weathers, mapOptions) : gaussianSitingMap(base, stack, weathers, mapOptions);
+  const mapSeconds = (performance.now() - mapStarted) / 1000;
+
   const candidates = rankCandidates(positions, receptors, map, pcAt, standard, projection.toLonLat);
 
   // The best position: the lowest column centre inside the site (or anywhere without one), unless a

@@ -82,11 +82,11 @@ describe('plumeplan site', () => {
     const json = JSON.parse(readFileSync(path.join(out, 'siting.json'), 'utf8'));
     expect(json.candidates.some((candidate: { id: string }) => candidate.id === 'yard-north')).toBe(true);
     expect(json.agreement.forwardRuns).toBe(3);
-    // The map is the direct release's adjoint; the forward runs carry the stack as a sub-grid plume first
-    // (docs/siting.md, The near field), so at these 400 m cells they differ by much more than before:
-    // measured 0.58 of the largest PC (under 0.1 before the sub-grid plume). The figure is what the user
-    // is shown; a near-field adjoint would bring it down.
-    expect(json.agreement.largestDifferenceFractionOfPeak).toBeLessThan(0.7);
+    // Map and forward runs both carry the stack as a sub-grid plume first (docs/siting.md, The near field);
+    // what is left is the limited scheme's discretisation error, larger on these coarse 200 m cells than
+    // on the solver tests' 25 m: measured 1.7 % of the largest PC (0.58 while the map released the stack
+    // straight into the grid). Asserted below 5 %.
+    expect(json.agreement.largestDifferenceFractionOfPeak).toBeLessThan(0.05);
   });
 
   it.each([

@@ -87,14 +87,15 @@ describe('runSiting on a case with a known answer', () => {
     });
   }
 
-  it('grid: the map agrees with forward runs at the candidates (within 12 % of the largest PC, near field included)', async () => {
-    // The map is the adjoint of the direct release; the forward runs carry stacks as a sub-grid plume
-    // first (docs/near-field.md), so the agreement measures the near field's difference too
-    // (docs/siting.md, The near field): measured 9.8 % on this layout, 2.7 % before the sub-grid plume.
+  it('grid: the map agrees with forward runs at the candidates (within 1 % of the largest PC, near field included)', async () => {
+    // The forward runs carry the stack as a sub-grid plume first (docs/near-field.md) and so does the map
+    // (solver/siting/nearFieldAdjoint.ts): what is left is the limited scheme's discretisation error
+    // (tests/solver/siting/nearFieldAdjoint.test.ts bounds it at 24 positions). Measured 0.12 % here (9.8 %
+    // while the map released the stack straight into the grid).
     const result = await runSiting(scenario(), { mode: 'grid', candidates, forwardRuns: 4 });
     expect(result.forwardRunCount).toBe(4);
     expect(result.forwardAgreement).not.toBeNull();
-    expect(result.forwardAgreement as number).toBeLessThan(0.12);
+    expect(result.forwardAgreement as number).toBeLessThan(0.01);
     const east = result.candidates.find((candidate) => candidate.id === 'axis-east');
     expect(east?.groundPeak_ug_m3).toBeGreaterThan(0);
     expect(east?.areaAboveLevel_m2).not.toBeNull();
