@@ -5,8 +5,9 @@
  *
  * Loading, progress and exit codes as `run`: 0 done; 2 invalid input (usage, scenario issues, candidates
  * or polygon that cannot be used), naming the option or field; 1 internal failure or a capability this
- * build lacks; 130 interrupted (Ctrl-C during the forward runs, which run in a worker thread; during the
- * adjoint solves Node's own Ctrl-C stops the process). Nothing is written before the end.
+ * build lacks; 130 interrupted (Ctrl-C at any point: the siting runs in a worker thread, ./siteInWorker.ts,
+ * which is stopped at once). Nothing is written before the end, and files written when Ctrl-C comes
+ * during the writing are removed again.
  */
 import { readFile, stat } from 'node:fs/promises';
 import path from 'node:path';
@@ -22,7 +23,8 @@ import { writeSitingFolder } from '../writers/siting.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
-import { INTERRUPTED_EXIT_CODE, workerSteadySolver } from './run.ts';
+import { INTERRUPTED_EXIT_CODE } from './run.ts';
+import { runSitingInWorker } from './siteInWorker.ts';
 
 export const SITE_USAGE = `usage: plumeplan site SCENARIO --out DIR [options]
 
@@ -80,7 +82,7 @@ interface SiteArguments {
 }
 
 export interface SiteCommandOptions {
-  /** the forward runs' steady solver (default: grid solves in a worker thread) */
+  /** the forward runs' steady solver, and the siting in process (tests); default: the whole siting in a worker thread */
   solve?: SteadySolver;
 }
 
@@ -106,6 +108,9 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
     return 0;
   }
   const progress = createProgressReporter(io.stderr, io.now);
+  const interrupt = new AbortController();
+  const onInterrupt = (): void => interrupt.abort();
+  process.once('SIGINT', onInterrupt);
   try {
     const existing = await stat(args.outDirectory).catch(() => null);
     if (existing !== null && !existing.isDirectory()) {
@@ -124,7 +129,8 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
       return 2;
     }
     const scenario = outcome.scenario;
-    const result = await runSiting(scenario, {
+    const site = options.solve === undefined ? runSitingInWorker : runSiting;
+    const result = await site(scenario, {
       mode: args.mode,
       stackId: args.stackId,
       receptorIds: args.receptorIds,
@@ -136,17 +142,19 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
       level_ug_m3: args.level_ug_m3,
       forwardRuns: args.forwardRuns,
       keepFootprints: args.footprints,
-      solve: options.solve ?? workerSteadySolver,
-      control: { onProgress: (fraction, message) => progress.update(fraction, message) },
+      solve: options.solve,
+      control: { onProgress: (fraction, message) => progress.update(fraction, message), signal: interrupt.signal },
     });
     progress.update(1, 'writing the siting folder');
-    const files = await writeSitingFolder(args.outDirectory, result, { levels_ug_m3: args.levels_ug_m3, site: scenario.site });
+    const files = await writeSitingFolder(args.outDirectory, result, { levels_ug_m3: args.levels_ug_m3, site: scenario.site, signal: interrupt.signal });
     progress.finish();
     io.stdout.write(describeSiting(result, args.outDirectory, files));
     return 0;
   } catch (error) {
     progress.finish();
     return reportFailure(error, io);
+  } finally {
+    process.off('SIGINT', onInterrupt);
   }
 }
 

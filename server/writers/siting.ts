@@ -5,7 +5,7 @@
  * position, the candidates, the receptors and the site polygon), and on request each forward-run
  * candidate's ground-level footprint.
  */
-import { mkdir, stat, writeFile } from 'node:fs/promises';
+import { mkdir, rm, stat, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Feature, Geometry } from 'geojson';
 import type { RankedCandidate, SitingResult } from '../../solver/siting/runSiting.ts';
@@ -186,6 +186,8 @@ export interface SitingFolderOptions {
   levels_ug_m3?: number[];
   /** site latitude and longitude (the local projection's origin) */
   site: { lat: number; lon: number };
+  /** when it aborts during the writing, the files written so far are removed and an AbortError thrown */
+  signal?: AbortSignal;
 }
 
 /**
@@ -218,6 +220,21 @@ export async function writeSitingFolder(directory: string, result: SitingResult,
   const existing = await stat(directory).catch(() => null);
   if (existing !== null && !existing.isDirectory()) throw new RangeError(`siting folder ${directory}: exists and is not a folder; give a folder to write the results into`);
   await mkdir(directory, { recursive: true });
-  for (const [name, content] of texts) await writeFile(path.join(directory, name), content);
+  // siting.json, the file that says what the folder holds, goes last: a folder without it is not a result
+  const ordered = [...texts.slice(1), texts[0]];
+  const written: string[] = [];
+  const interrupted = async (): Promise<never> => {
+    await Promise.all(written.map((file) => rm(file, { force: true })));
+    const error = new Error('siting interrupted while writing; the files written were removed');
+    error.name = 'AbortError';
+    throw error;
+  };
+  for (const [name, content] of ordered) {
+    if (options.signal?.aborted) await interrupted();
+    const file = path.join(directory, name);
+    written.push(file);
+    await writeFile(file, content);
+  }
+  if (options.signal?.aborted) await interrupted();
   return texts.map(([name]) => name);
 }

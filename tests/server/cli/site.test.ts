@@ -1,7 +1,7 @@
 /**
  * Behaviour checks of `plumeplan site`, in process: help, a grid-mode siting of a coarse demo with a
- * candidate file and a site polygon (exit 0, the four files, what stdout says), and input errors (exit 2,
- * the option or field named) and a capability not built (exit 1).
+ * candidate file and a site polygon (exit 0, the four files, what stdout says), an hourly series, and input
+ * errors (exit 2, the option or field named) and a capability not built (exit 1). Ctrl-C: siteInterrupt.test.ts.
  */
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -116,13 +116,22 @@ describe('plumeplan site', () => {
     expect(existsSync(path.join(scratch, 'bad'))).toBe(false);
   });
 
-  it('an hourly series is not mapped yet: exit 1, saying what to use instead', async () => {
+  it('an hourly series is mapped as its mean (exit 0); a screening set is not built (exit 1, saying what to use)', async () => {
     const run = capture();
     const hourly = coarseDemo((scenario) => {
       const { kind: _kind, ...fields } = scenario.weather;
-      scenario.weather = { kind: 'hourly', hours: [{ ...fields, time: '2026-01-05T10:00:00Z' }] };
+      scenario.weather = { kind: 'hourly', hours: [{ ...fields, time: '2026-01-05T10:00:00Z' }, { ...fields, time: '2026-01-05T11:00:00Z' }, { ...fields, windFrom_deg: 200, time: '2026-01-05T12:00:00Z' }] };
     });
-    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian'], run.io, inProcess)).toBe(1);
-    expect(run.stderr()).toMatch(/hourly series is not built yet: give the weather as a wind rose/);
+    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian'], run.io, inProcess), run.stderr()).toBe(0);
+    expect(run.stdout()).toMatch(/long-term mean PC/);
+    const json = JSON.parse(readFileSync(path.join(scratch, 'hourly', 'siting.json'), 'utf8'));
+    expect(json.weatherKind).toBe('hourly');
+    expect(json.notes.join(' ')).toMatch(/hourly series of 3 hours, 2 distinct weather states/);
+    const set = capture();
+    const screening = coarseDemo((scenario) => {
+      scenario.weather = { kind: 'screeningSet', sectors: 12, rain_mm_h: 0, airTemperature_K: 283, anemometerHeight_m: 10 };
+    });
+    expect(await main(['site', screening, '--out', path.join(scratch, 'set'), '--mode', 'gaussian'], set.io, inProcess)).toBe(1);
+    expect(set.stderr()).toMatch(/weather of kind "screeningSet" is not built: give steady weather, a wind rose or an hourly series/);
   });
 });
