@@ -33,7 +33,8 @@ scenario's stack stood there, finds the best position on the site and ranks cand
 Writes into DIR (created if missing):
   siting.json      the result: best position, ranked candidates, standard, limits, caution
   candidates.csv   the ranked candidates, one row each (PC in ug/m3)
-  siting-map.tif   the map as a GeoTIFF (band 1 combined, then one band per receptor; ug/m3)
+  siting-map.tif   the map as a GeoTIFF in the site's UTM zone (ug/m3; nodata off the site),
+                   and siting-map-<receptor>.tif for each receptor (up to 5 receptors)
   siting.geojson   the map's isopleth bands, best position, candidates, receptors, site polygon
 
 Options:
