@@ -36,6 +36,7 @@ import { gridSitingMap } from '../../../solver/siting/sitingMap.ts';
 import { SubGridPlume } from '../../../solver/sources/subGridPlume.ts';
 import type { NearFieldTreatment } from '../../../solver/sources/nearField.ts';
 import { solveSteadyState } from '../../../solver/timestepping/steadySweep.ts';
+import { paddedIndex } from '../../../solver/fields/paddedLayout.ts';
 import { testGrid } from '../verification/testGrid.ts';
 
 const SOLVE = { tolerance: 1e-10, maxSweeps: 3000 };
@@ -160,3 +161,45 @@ describe('siting map with the sub-grid plume against forward runs (24 positions,
     });
   }
 });
+
+describe('moved plans against each position\'s own plan (every column of the grid)', () => {
+  // The map moves one exact plan per group of positions by whole cells (solver/siting/nearFieldAdjoint.ts);
+  // here every column gets its own plan instead, read with the same adjoint, and the two must agree to
+  // rounding. The adjoint is a stand-in field (smooth, positive, varying in every direction) so that any
+  // misplaced cell or rate shows. Receptors: one inside the domain, one half a cell from the north edge
+  // (outside the hull of column centres, where the moved reading does not apply).
+  const { nx, ny, nz } = grid;
+  const layout = solveReceptorAdjoint({ ...gridModelParts({ ...runInput, sources: [stack] }, weather, [stack.height_m]) }, receptor, { maxSweeps: 1 }).model.layout;
+  const standIn = new Float64Array(layout.size);
+  for (let k = 0; k < nz; k++) for (let j = 0; j < ny; j++) for (let i = 0; i < nx; i++) {
+    standIn[paddedIndex(layout, i, j, k)] = 1 + Math.sin(0.37 * i + 0.11 * j * j) * Math.cos(0.23 * j) + 0.05 * k + 0.01 * i * j;
+  }
+  const receptors = [receptor, { id: 'edge', x_m: grid.xWest_m + 610, y_m: grid.ySouth_m + ny * grid.spacing_m - 10, height_m: 1.5 }];
+
+  for (const [name, treatment] of [['hand-over at one cell', nearHandover], ['default sub-grid plume', new SubGridPlume()]] as const) {
+    it(`${name}: equal at all ${nx * ny} columns`, () => {
+      const out = receptors.map(() => new Float64Array(nx * ny));
+      const report = addNearFieldMaps({ treatment, context: { ...runInput, weather }, stack, height_m: stack.height_m }, receptors.map((r) => ({ receptor: r, layout, field: standIn })), 1, out);
+      let largest = 0;
+      let worst = 0;
+      for (let j = 0; j < ny; j++) for (let i = 0; i < nx; i++) {
+        const [x_m, y_m] = centre(i, j);
+        const plan = treatment.plan({ ...runInput, weather, sources: [{ ...stack, x_m, y_m }], releaseHeights_m: [stack.height_m] });
+        let emission = 0;
+        plan.emission.cells.forEach((cell, n) => {
+          const column = cell % (nx * ny);
+          emission += plan.emission.rates_g_s[n] * standIn[paddedIndex(layout, column % nx, Math.floor(column / nx), Math.floor(cell / (nx * ny)))];
+        });
+        receptors.forEach((r, n) => {
+          const own = emission + plan.concentration_g_m3(r.x_m, r.y_m, r.height_m);
+          largest = Math.max(largest, own);
+          worst = Math.max(worst, Math.abs(out[n][i + nx * j] - own));
+        });
+      }
+      expect(largest).toBeGreaterThan(0.5);
+      expect(worst).toBeLessThan(1e-12 * largest);
+      expect(report.plans).toBeLessThan(nx * ny);
+    });
+  }
+});
+
