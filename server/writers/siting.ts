@@ -152,6 +152,7 @@ export function sitingJson(result: SitingResult, files: Record<string, string>):
       mapSeconds: roundSignificant(result.mapSeconds, 3),
       adjointSolves: map.mode === 'grid' ? map.solves : 0,
       sweeps: map.sweeps,
+      nearFieldPlans: map.nearFieldPlans,
       forwardSeconds: roundSignificant(result.forwardSeconds, 3),
       wallSeconds: roundSignificant(result.wallSeconds, 3),
     },

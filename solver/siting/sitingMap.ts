@@ -81,6 +81,8 @@ export interface SitingMap {
   solves: number;
   /** steady sweeps of the adjoint solves in all (grid mode; 0 in Gaussian mode) */
   sweeps: number;
+  /** exact near-field plans made for the map and the exact positions (grid mode; 0 in Gaussian mode) */
+  nearFieldPlans: number;
   wallSeconds: number;
   notes: string[];
 }
@@ -210,6 +212,7 @@ export function gridSitingMap(base: SitingBase, stack: PlacedPointSource, weathe
     receptorWeights: receptorWeightsOf(options.combination),
     solves,
     sweeps,
+    nearFieldPlans: plans,
     wallSeconds: (performance.now() - started) / 1000,
     notes,
   };
@@ -275,6 +278,7 @@ export function gaussianSitingMap(base: SitingBase, stack: PlacedPointSource, we
     receptorWeights: receptorWeightsOf(options.combination),
     solves: grid.nx * grid.ny * receptors.length * weathers.length,
     sweeps: 0,
+    nearFieldPlans: 0,
     wallSeconds: (performance.now() - started) / 1000,
     notes: [`Gaussian mode: the stack's steady plume evaluated directly from every column centre to every receptor (${weathers.length} weather state${weathers.length === 1 ? '' : 's'})`],
   };

@@ -3,7 +3,8 @@
  * the demo's siting map for its three receptors, in grid mode (three adjoint solves) and Gaussian mode
  * (direct evaluation), against the time of the forward runs it replaces: one forward solve per grid
  * column, timed on a few positions and multiplied out. Also the map's largest difference from those
- * forward runs, as a fraction of the largest forward PC. Figures are what this machine measured.
+ * forward runs, as a fraction of the largest forward PC (the timed positions read exactly, each with its
+ * own near-field plan, as candidates are). Figures are what this machine measured.
  */
 import { loadScenarioFile } from '../../server/scenarioFiles/load.ts';
 import { steadyInput } from '../../solver/drivers/runScenario.ts';
@@ -61,7 +62,7 @@ export async function sitingBenchmarks(print: (record: Record<string, unknown>) 
       mapSeconds: Number(mapSeconds.toFixed(2)),
       adjointSolves: mode === 'grid' ? map.solves : 0,
       adjointSweeps: map.sweeps,
-      nearFieldPlans: mode === 'grid' ? Number(/(\d+) near-field plans/.exec(map.notes.join(' '))?.[1] ?? 0) : 0,
+      nearFieldPlans: map.nearFieldPlans,
       forwardSolvesTimed: TIMED_POSITIONS.length,
       forwardSolveSecondsMean: Number(forwardMean.toFixed(3)),
       forwardRunsReplaced: positions,
