@@ -6,7 +6,7 @@
 import type { Scenario, SolverMode } from '../../scenarios/format/types.ts';
 import type { SteadySolver } from '../../solver/drivers/solveSteady.ts';
 import type { RunControl } from '../../solver/drivers/types.ts';
-import { runSiting, type CandidateInput, type SitingResult } from '../../solver/siting/runSiting.ts';
+import { runSiting, type CandidateInput, type SitingOptions, type SitingResult } from '../../solver/siting/runSiting.ts';
 import type { ReceptorCombination } from '../../solver/siting/sitingMap.ts';
 
 /**
@@ -101,12 +101,11 @@ export function combinationOf(weights: number[] | undefined): ReceptorCombinatio
 }
 
 /**
- * Site the stack.
- * @param solve the forward runs' steady solver (the CLI's runs in a worker thread)
- * @throws ScenarioInputError naming the field; UnavailableError for an hourly series
+ * runSiting's options for a request.
+ * @param solve the forward runs' steady solver (undefined: runSiting's own)
  */
-export function computeSiting(scenario: Scenario, request: SiteRequest, solve: SteadySolver | undefined, control: RunControl): Promise<SitingResult> {
-  return runSiting(scenario, {
+export function sitingOptions(request: SiteRequest, solve: SteadySolver | undefined, control: RunControl): SitingOptions {
+  return {
     mode: request.mode,
     stackId: request.stackId,
     receptorIds: request.receptorIds,
@@ -120,5 +119,14 @@ export function computeSiting(scenario: Scenario, request: SiteRequest, solve: S
     keepFootprints: request.footprints === true,
     solve,
     control,
-  });
+  };
+}
+
+/**
+ * Site the stack in this thread (a server job is already in a worker thread).
+ * @param solve the forward runs' steady solver
+ * @throws ScenarioInputError naming the field; UnavailableError for a kind of weather it cannot site
+ */
+export function computeSiting(scenario: Scenario, request: SiteRequest, solve: SteadySolver | undefined, control: RunControl): Promise<SitingResult> {
+  return runSiting(scenario, sitingOptions(request, solve, control));
 }

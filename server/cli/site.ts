@@ -5,8 +5,9 @@
  *
  * Loading, progress and exit codes as `run`: 0 done; 2 invalid input (usage, scenario issues, candidates
  * or polygon that cannot be used), naming the option or field; 1 internal failure or a capability this
- * build lacks; 130 interrupted (Ctrl-C during the forward runs, which run in a worker thread; during the
- * adjoint solves Node's own Ctrl-C stops the process). Nothing is written before the end.
+ * build lacks; 130 interrupted (Ctrl-C at any point: the siting runs in a worker thread, ./siteInWorker.ts,
+ * which is stopped at once). Nothing is written before the end, and files written when Ctrl-C comes
+ * during the writing are removed again.
  */
 import { readFile, stat } from 'node:fs/promises';
 import path from 'node:path';
@@ -16,13 +17,14 @@ import type { SolverMode } from '../../scenarios/format/types.ts';
 import { ScenarioInputError } from '../../solver/drivers/runScenario.ts';
 import { UnavailableError, type SteadySolver } from '../../solver/drivers/solveSteady.ts';
 import type { CandidateInput, SitingResult } from '../../solver/siting/runSiting.ts';
-import { computeSiting, parseCandidates, parseSitePolygon, SitingInputError } from '../analyses/siting.ts';
+import { computeSiting, parseCandidates, parseSitePolygon, SitingInputError, sitingOptions } from '../analyses/siting.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { writeSitingFolder } from '../writers/siting.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
-import { INTERRUPTED_EXIT_CODE, workerSteadySolver } from './run.ts';
+import { INTERRUPTED_EXIT_CODE } from './run.ts';
+import { runSitingInWorker } from './siteInWorker.ts';
 
 export const SITE_USAGE = `usage: plumeplan site SCENARIO --out DIR [options]
 
@@ -31,7 +33,8 @@ scenario's stack stood there, finds the best position on the site and ranks cand
 Writes into DIR (created if missing):
   siting.json      the result: best position, ranked candidates, standard, limits, caution
   candidates.csv   the ranked candidates, one row each (PC in ug/m3)
-  siting-map.tif   the map as a GeoTIFF (band 1 combined, then one band per receptor; ug/m3)
+  siting-map.tif   the map as a GeoTIFF in the site's UTM zone (ug/m3; nodata off the site),
+                   and siting-map-<receptor>.tif for each receptor (up to 5 receptors)
   siting.geojson   the map's isopleth bands, best position, candidates, receptors, site polygon
 
 Options:
@@ -80,7 +83,7 @@ interface SiteArguments {
 }
 
 export interface SiteCommandOptions {
-  /** the forward runs' steady solver (default: grid solves in a worker thread) */
+  /** the forward runs' steady solver, and the siting in process (tests); default: the whole siting in a worker thread */
   solve?: SteadySolver;
 }
 
@@ -106,6 +109,9 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
     return 0;
   }
   const progress = createProgressReporter(io.stderr, io.now);
+  const interrupt = new AbortController();
+  const onInterrupt = (): void => interrupt.abort();
+  process.once('SIGINT', onInterrupt);
   try {
     const existing = await stat(args.outDirectory).catch(() => null);
     if (existing !== null && !existing.isDirectory()) {
@@ -124,32 +130,33 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
       return 2;
     }
     const scenario = outcome.scenario;
-    const result = await computeSiting(
-      scenario,
-      {
-        mode: args.mode,
-        stackId: args.stackId,
-        receptorIds: args.receptorIds,
-        weights: args.weights,
-        candidates,
-        sitePolygon,
-        spacing_m: args.spacing_m,
-        standard: args.standardName,
-        level_ug_m3: args.level_ug_m3,
-        forwardRuns: args.forwardRuns,
-        footprints: args.footprints,
-      },
-      options.solve ?? workerSteadySolver,
-      { onProgress: (fraction, message) => progress.update(fraction, message) },
-    );
+    const request = {
+      mode: args.mode,
+      stackId: args.stackId,
+      receptorIds: args.receptorIds,
+      weights: args.weights,
+      candidates,
+      sitePolygon,
+      spacing_m: args.spacing_m,
+      standard: args.standardName,
+      level_ug_m3: args.level_ug_m3,
+      forwardRuns: args.forwardRuns,
+      footprints: args.footprints,
+    };
+    const control = { onProgress: (fraction: number, message: string) => progress.update(fraction, message), signal: interrupt.signal };
+    // in a worker thread, so that Ctrl-C stops the adjoint solves at once (./siteInWorker.ts)
+    const result =
+      options.solve === undefined ? await runSitingInWorker(scenario, sitingOptions(request, undefined, control)) : await computeSiting(scenario, request, options.solve, control);
     progress.update(1, 'writing the siting folder');
-    const files = await writeSitingFolder(args.outDirectory, result, { levels_ug_m3: args.levels_ug_m3, site: scenario.site });
+    const files = await writeSitingFolder(args.outDirectory, result, { levels_ug_m3: args.levels_ug_m3, site: scenario.site, signal: interrupt.signal });
     progress.finish();
     io.stdout.write(describeSiting(result, args.outDirectory, files));
     return 0;
   } catch (error) {
     progress.finish();
     return reportFailure(error, io);
+  } finally {
+    process.off('SIGINT', onInterrupt);
   }
 }
 

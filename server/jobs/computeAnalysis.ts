@@ -216,5 +216,5 @@ async function computeSiteRun(job: RunJob, control: RunControl): Promise<ResultF
   const request = job.options as SiteRequest & { levels_ug_m3?: number[] };
   const result = await computeSiting(scenario, request, undefined, control);
   control.onProgress?.(1, 'writing the siting files');
-  return asResultFiles(buildSitingFiles(result, { levels_ug_m3: request.levels_ug_m3, site: scenario.site }));
+  return asResultFiles(await buildSitingFiles(result, { levels_ug_m3: request.levels_ug_m3, site: scenario.site }));
 }

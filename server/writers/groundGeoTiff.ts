@@ -53,6 +53,12 @@ export interface GroundGeoTiffOptions {
   version?: string;
   /** when the run was made (the DateTime tag) */
   runDate?: Date;
+  /**
+   * what the values are, replacing "Ground-level <pollutant> <statistic> [ug/m3] at <height> m" at the
+   * head of the description, for other fields on the grid (the siting map); keep it short (the tags share
+   * the writer's 1000-byte header)
+   */
+  subject?: string;
 }
 
 export interface ResampledGround {
@@ -230,7 +236,7 @@ export async function writeGroundGeoTiff(
 
   const statistic = result.footprintStatistic === 'mean' ? 'period mean' : 'steady-weather concentration';
   const what =
-    `Ground-level ${options.pollutant ?? ''} ${statistic} [ug/m3] at ${options.height_m ?? 1.5} m, ` +
+    (options.subject ?? `Ground-level ${options.pollutant ?? ''} ${statistic} [ug/m3] at ${options.height_m ?? 1.5} m`) + ', ' +
     `screened by plumeplan; nodata ${GEOTIFF_NODATA} outside the modelled grid. ` +
     `Resampled (${resampling === 'nearest' ? 'nearest cell' : 'bilinear'}, proj4) from the ${grid.spacing_m} m local ` +
     `transverse Mercator grid about the site to EPSG:${crs.epsg}. `;

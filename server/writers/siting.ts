@@ -1,17 +1,20 @@
 /**
  * The siting result's files: the ranked candidates (candidates.csv, machine-clean RFC 4180, and
- * siting.json, the whole result with the caution and the limits), the map as a GeoTIFF (siting-map.tif)
- * and as GeoJSON (siting.geojson: the map's isopleth bands, drawn by footprint.ts's contouring, the best
+ * siting.json, the whole result with the caution and the limits), the map as GeoTIFFs (siting-map.tif,
+ * the receptors combined, and siting-map-<receptor>.tif per receptor when there are at most
+ * MAX_RECEPTOR_RASTERS, written by the pack's GeoTIFF writer, ./groundGeoTiff.ts: the site's UTM zone,
+ * nearest-cell resampling so every pixel is a value the map holds, nodata off the site and outside the
+ * grid, the caution in the description) and as GeoJSON (siting.geojson: the map's isopleth bands, drawn by footprint.ts's contouring, the best
  * position, the candidates, the receptors and the site polygon), and on request each forward-run
  * candidate's ground-level footprint.
  */
-import { mkdir, stat, writeFile } from 'node:fs/promises';
+import { mkdir, rm, stat, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Feature, Geometry } from 'geojson';
 import type { RankedCandidate, SitingResult } from '../../solver/siting/runSiting.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import { defaultFootprintLevels, footprintBands } from './footprint.ts';
-import { localGridGeoTiff, MAX_BANDS } from './localGeoTiff.ts';
+import { GEOTIFF_NODATA, writeGroundGeoTiff } from './groundGeoTiff.ts';
 import { CONCENTRATION_SIGNIFICANT_FIGURES, LON_LAT_DECIMALS, roundDecimals, roundSignificant } from './rounding.ts';
 import { csvField } from './receptorsCsv.ts';
 import { formatFootprint } from './writeResultFolder.ts';
@@ -21,6 +24,20 @@ export const CANDIDATES_CSV_FILE = 'candidates.csv';
 export const SITING_MAP_FILE = 'siting-map.tif';
 export const SITING_GEOJSON_FILE = 'siting.geojson';
 export const SITING_FORMAT = 'plumeplan.siting/1';
+
+/** Receptors up to this many get a raster each (siting-map-<id>.tif); more, only the combined map. */
+export const MAX_RECEPTOR_RASTERS = 5;
+
+/** File name of one receptor's raster. */
+export function receptorRasterFile(receptorId: string): string {
+  return `siting-map-${receptorId.replace(/[^\w.-]/g, '_')}.tif`;
+}
+
+/** The receptors' rasters written, by receptor id (none when there are more than MAX_RECEPTOR_RASTERS). */
+function receptorRasters(result: SitingResult): Record<string, string> {
+  if (result.receptors.length > MAX_RECEPTOR_RASTERS) return {};
+  return Object.fromEntries(result.receptors.map((receptor) => [receptor.id, receptorRasterFile(receptor.id)]));
+}
 
 const LINE_END = '\r\n';
 const pc = (value: number): number => roundSignificant(value, CONCENTRATION_SIGNIFICANT_FIGURES);
@@ -103,7 +120,11 @@ export function sitingJson(result: SitingResult, files: Record<string, string>):
       combination: map.combination,
       units: 'ug/m3',
       grid: { nx: grid.nx, ny: grid.ny, spacing_m: grid.spacing_m, xWest_m: grid.xWest_m, ySouth_m: grid.ySouth_m, projection: grid.projection.definition },
-      bands: [`1: ${map.combination}`, ...(map.receptorIds.length < MAX_BANDS ? map.receptorIds.map((id, r) => `${r + 2}: PC at ${id}`) : [])],
+      rasters: {
+        combined: SITING_MAP_FILE,
+        perReceptor: receptorRasters(result),
+        crs: 'the site\'s WGS 84 UTM zone (EPSG code in each file), each pixel the map value of the grid column its centre falls in (nearest cell); nodata -9999 off the site and outside the grid',
+      },
       maskedToSite: result.siteMask !== null,
       files,
     },
@@ -131,6 +152,7 @@ export function sitingJson(result: SitingResult, files: Record<string, string>):
       mapSeconds: roundSignificant(result.mapSeconds, 3),
       adjointSolves: map.mode === 'grid' ? map.solves : 0,
       sweeps: map.sweeps,
+      nearFieldPlans: map.nearFieldPlans,
       forwardSeconds: roundSignificant(result.forwardSeconds, 3),
       wallSeconds: roundSignificant(result.wallSeconds, 3),
     },
@@ -184,22 +206,39 @@ export function sitingGeoJson(result: SitingResult, levels_ug_m3?: number[]): Re
 export interface SitingFolderOptions {
   /** the map bands' levels [ug/m3] */
   levels_ug_m3?: number[];
-  /** site latitude and longitude (the local projection's origin) */
+  /** site latitude and longitude (the local projection's origin; the rasters' UTM zone is the grid's site) */
   site: { lat: number; lon: number };
+  /** when it aborts during the writing, the files written so far are removed and an AbortError thrown */
+  signal?: AbortSignal;
 }
 
 /**
- * Build the siting folder's files in memory: siting.json, candidates.csv, siting-map.tif,
- * siting.geojson, and a footprint-<id>.geojson for each candidate that kept its ground-level field.
- * What `writeSitingFolder` writes and what the server stores for a site job.
+ * Build the siting folder's files in memory: siting.json, candidates.csv, siting-map.tif, siting.geojson,
+ * a siting-map-<receptor>.tif per receptor (up to MAX_RECEPTOR_RASTERS) and a footprint-<id>.geojson for
+ * each candidate that kept its ground-level field. What `writeSitingFolder` writes and what the server
+ * stores for a site job.
  *
  * @returns [file name, content] in the order written
  * @throws RangeError when the levels are invalid
  */
-export function buildSitingFiles(result: SitingResult, options: SitingFolderOptions): [string, string | Uint8Array][] {
-  const receptorBands = result.map.perReceptor_ug_m3.length < MAX_BANDS ? result.map.perReceptor_ug_m3 : [];
-  const description = `${SCREENING_CAUTION} Band 1: ${result.map.receptorWeights === null ? 'highest' : 'weighted'} PC [ug/m3], stack at each pixel. See siting.json.`;
-  const tiff = localGridGeoTiff(result.grid, [result.map.combined_ug_m3, ...receptorBands], { site: options.site, mask: result.siteMask, description });
+export async function buildSitingFiles(result: SitingResult, options: SitingFolderOptions): Promise<[string, string | Uint8Array][]> {
+  const statistic = result.statistic === 'mean' ? 'long-term mean' : 'steady-weather';
+  const raster = async (field: Float64Array, what: string): Promise<Uint8Array> => {
+    // off the site: the writer's nodata value, which nearest-cell resampling carries through unchanged
+    const masked = result.siteMask === null ? field : Float64Array.from(field, (value, column) => (result.siteMask?.[column] === 1 ? value : GEOTIFF_NODATA));
+    const tif = await writeGroundGeoTiff(
+      { grid: result.grid, footprint_ug_m3: masked, footprintStatistic: result.statistic, weatherKind: result.weatherKind },
+      { subject: `Siting map: ${statistic} ${what} [ug/m3] if the stack stood at each pixel, nodata also off the site`, scenarioName: result.scenarioName },
+    );
+    return tif.bytes;
+  };
+  const tiff = await raster(result.map.combined_ug_m3, result.map.receptorWeights === null ? 'highest PC at the receptors' : 'weighted sum of receptor PCs');
+  const perReceptor = receptorRasters(result);
+  const receptorTiffs: [string, Uint8Array][] = [];
+  for (const [r, receptor] of result.receptors.entries()) {
+    const file = perReceptor[receptor.id];
+    if (file !== undefined) receptorTiffs.push([file, await raster(result.map.perReceptor_ug_m3[r], `PC at ${receptor.id}`)]);
+  }
   const geojson = sitingGeoJson(result, options.levels_ug_m3);
   const footprints: [string, string][] = [];
   for (const candidate of result.candidates) {
@@ -213,6 +252,7 @@ export function buildSitingFiles(result: SitingResult, options: SitingFolderOpti
     [CANDIDATES_CSV_FILE, candidatesCsv(result)],
     [SITING_MAP_FILE, tiff],
     [SITING_GEOJSON_FILE, `${JSON.stringify(geojson)}\n`],
+    ...receptorTiffs,
     ...footprints,
   ];
 }
@@ -225,10 +265,25 @@ export function buildSitingFiles(result: SitingResult, options: SitingFolderOpti
  */
 export async function writeSitingFolder(directory: string, result: SitingResult, options: SitingFolderOptions): Promise<string[]> {
   // Everything is built before the disk is touched, so a failure leaves no half-written folder.
-  const texts = buildSitingFiles(result, options);
+  const texts = await buildSitingFiles(result, options);
   const existing = await stat(directory).catch(() => null);
   if (existing !== null && !existing.isDirectory()) throw new RangeError(`siting folder ${directory}: exists and is not a folder; give a folder to write the results into`);
   await mkdir(directory, { recursive: true });
-  for (const [name, content] of texts) await writeFile(path.join(directory, name), content);
+  // siting.json, the file that says what the folder holds, goes last: a folder without it is not a result
+  const ordered = [...texts.slice(1), texts[0]];
+  const written: string[] = [];
+  const interrupted = async (): Promise<never> => {
+    await Promise.all(written.map((file) => rm(file, { force: true })));
+    const error = new Error('siting interrupted while writing; the files written were removed');
+    error.name = 'AbortError';
+    throw error;
+  };
+  for (const [name, content] of ordered) {
+    if (options.signal?.aborted) await interrupted();
+    const file = path.join(directory, name);
+    written.push(file);
+    await writeFile(file, content);
+  }
+  if (options.signal?.aborted) await interrupted();
   return texts.map(([name]) => name);
 }

@@ -4,7 +4,7 @@
  * forward runs for the ground-level peak and the area above a level. Pure: the command line and the
  * server's jobs call it and write what it returns.
  */
-import type { AirQualityStandard, Scenario, SolverMode } from '../../scenarios/format/types.ts';
+import type { AirQualityStandard, Scenario, SolverMode, WeatherHour } from '../../scenarios/format/types.ts';
 import { ScenarioInputError, steadyInput } from '../drivers/runScenario.ts';
 import { solveSteady, UnavailableError, type SteadySolver } from '../drivers/solveSteady.ts';
 import type { PlacedPointSource, PlacedReceptor, RunControl } from '../drivers/types.ts';
@@ -101,8 +101,8 @@ export interface SitingResult {
   scenarioName: string;
   pollutant: string;
   mode: SolverMode;
-  weatherKind: 'steady' | 'windRose';
-  /** what every map value is: "concentration" (one steady state, an hourly value) or "mean" (a rose) */
+  weatherKind: 'steady' | 'windRose' | 'hourly';
+  /** what every map value is: "concentration" (one steady state, an hourly value) or "mean" (a rose's or an hourly series' long-term mean) */
   statistic: 'concentration' | 'mean';
   grid: LocalGrid;
   map: SitingMap;
@@ -127,16 +127,37 @@ export interface SitingResult {
   notes: string[];
 }
 
+/**
+ * An hourly series as weighted weather states: the hours' resolved weathers, identical ones grouped, each
+ * weighted by its share of the hours present. The series' mean at a position is then the weighted sum of
+ * the distinct states' values, exactly (each hour an independent steady state; gaps are not filled in,
+ * the mean is over the hours present, as the forward series runner takes it).
+ *
+ * @throws RangeError naming the hour whose weather cannot be resolved, or an empty series
+ */
+export function distinctHours(hours: readonly WeatherHour[], site: Scenario['site']): WeightedWeather[] {
+  if (hours.length === 0) throw new RangeError('weather.hours: the series is empty (at least one hour is needed)');
+  const byKey = new Map<string, WeightedWeather>();
+  hours.forEach((hour, h) => {
+    const state = resolveWeatherWithSource(hour, site, `weather.hours[${h}]`).weather;
+    const key = JSON.stringify(Object.entries(state).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0)));
+    const known = byKey.get(key);
+    if (known === undefined) byKey.set(key, { weather: state, weight: 1 / hours.length });
+    else known.weight += 1 / hours.length;
+  });
+  return [...byKey.values()];
+}
+
 /** Forward runs in grid mode, at most, unless asked for more. */
 export const DEFAULT_GRID_FORWARD_RUNS = 50;
 
 /**
  * Site a stack.
  *
- * @param scenario a parsed scenario with steady or wind-rose weather and at least one point source
+ * @param scenario a parsed scenario with steady, wind-rose or hourly weather and at least one point source
  * @param options stack, receptors, candidates or site polygon, standard, forward runs, progress
  * @returns the map, the best position, the ranked candidates, the limits and notes
- * @throws ScenarioInputError naming the field for input that cannot be used; UnavailableError for an hourly series
+ * @throws ScenarioInputError naming the field for input that cannot be used
  * @example const result = await runSiting(scenario, { candidates: [{ lon: -2.284, lat: 54.061 }] });
  */
 export async function runSiting(scenario: Scenario, options: SitingOptions = {}): Promise<SitingResult> {
@@ -181,25 +202,20 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   } else if (weather.kind === 'windRose') {
     const { states, frequencies } = windRoseStates(weather, scenario.site);
     weathers = states.map((state, n) => ({ weather: state, weight: frequencies[n] }));
+  } else if (weather.kind === 'hourly') {
+    weathers = distinctHours(weather.hours, scenario.site);
   } else {
     throw new UnavailableError(
-      'siting from an hourly series is not built yet: give the weather as a wind rose for the long-term mean ' +
-        '(a percentile map would need each hour\'s adjoint kept per position, not only their mean)',
+      `siting from weather of kind "${weather.kind}" is not built: give steady weather, a wind rose or an hourly series ` +
+        '(a screening set asks for the highest over its states, which a mean map does not give)',
     );
   }
   const statistic = weather.kind === 'steady' ? 'concentration' : 'mean';
   const standards = scenario.assessment?.standards ?? [];
-  const standard = chooseStandard(standards, weather.kind, options.standardName);
+  const standard = chooseStandard(standards, weather.kind as SitingResult['weatherKind'], options.standardName);
   const threshold_percent = standard === null ? null : screenPc(0, standard).threshold_percent;
   const level_ug_m3 = options.level_ug_m3 ?? (standard !== null && threshold_percent !== null ? (standard.limit_ug_m3 * threshold_percent) / 100 : null);
   if (level_ug_m3 !== null && !(level_ug_m3 > 0 && Number.isFinite(level_ug_m3))) throw new RangeError(`level is ${level_ug_m3} ug/m3; allowed: a finite level > 0`);
-
-  // The map.
-  const base = { ...steadyInput(scenario, geometry, weathers[0].weather), receptors };
-  const mapOptions = { combination: options.combination, control: partOfProgress(control, 0, 2, 'siting map') };
-  const mapStarted = performance.now();
-  const { map, pcAt } = mode === 'grid' ? gridSitingMap(base, stack, weathers, mapOptions) : gaussianSitingMap(base, stack, weathers, mapOptions);
-  const mapSeconds = (performance.now() - mapStarted) / 1000;
 
   // The site polygon and the best position.
   const polygon = options.sitePolygon ?? scenario.site.boundary;
@@ -229,6 +245,13 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
     if (ids.has(id)) throw new RangeError(`candidates: the id "${id}" is given twice; allowed: unique ids`);
     ids.add(id);
   }
+  // The map.
+  const base = { ...steadyInput(scenario, geometry, weathers[0].weather), receptors };
+  const mapOptions = { combination: options.combination, control: partOfProgress(control, 0, 2, 'siting map'), exactAt: positions };
+  const mapStarted = performance.now();
+  const { map, pcAt } = mode === 'grid' ? gridSitingMap(base, stack, weathers, mapOptions) : gaussianSitingMap(base, stack, weathers, mapOptions);
+  const mapSeconds = (performance.now() - mapStarted) / 1000;
+
   const candidates = rankCandidates(positions, receptors, map, pcAt, standard, projection.toLonLat);
 
   // The best position: the lowest column centre inside the site (or anywhere without one), unless a
@@ -296,8 +319,14 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   notes.push(
     weather.kind === 'steady'
       ? 'one steady weather state: every PC is the concentration of that one hour of weather, comparable with a short-term standard only'
-      : `wind rose of ${weathers.length} cells: every PC is the frequency-weighted mean (the long-term mean); percentiles are not mapped`,
+      : weather.kind === 'windRose'
+        ? `wind rose of ${weathers.length} cells: every PC is the frequency-weighted mean (the long-term mean); percentiles are not mapped`
+        : `hourly series of ${weather.kind === 'hourly' ? weather.hours.length : 0} hours, ${weathers.length} distinct weather states (identical hours grouped): every PC is the mean over the hours present, ` +
+          'each hour its own steady state (as solver.hourlyMethod "independentHours"); percentiles are not mapped (see docs/siting.md)',
   );
+  if (weather.kind === 'hourly' && scenario.solver.hourlyMethod === 'continuous') {
+    notes.push('the scenario runs its series as one continuous time-march; the map takes each hour as its own steady state (independent hours), so it can differ from that run where the field carries over from hour to hour');
+  }
   if (siteMask === null) notes.push('no site polygon: the best position is the lowest value in the whole domain, often at an edge far from the receptors; give a site polygon to confine it');
   if (forwardAgreement !== null) {
     notes.push(`forward runs at ${forwardCount} candidates agree with the map's receptor PCs within ${(100 * forwardAgreement).toPrecision(2)} % of the largest forward PC`);
@@ -311,7 +340,7 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
     scenarioName: scenario.name,
     pollutant: scenario.pollutant.name,
     mode,
-    weatherKind: weather.kind,
+    weatherKind: weather.kind as SitingResult['weatherKind'],
     statistic,
     grid,
     map,

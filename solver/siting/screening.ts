@@ -43,12 +43,12 @@ export function screenPc(pc_ug_m3: number, standard: AirQualityStandard): Screen
 
 /**
  * The standard a siting run compares with: the one named, or else the one whose statistic the run gives
- * (steady weather: an hourly PC, so the shortest averaging period; a wind rose: a mean, so a long-term
- * standard). Null when the scenario has no standards.
+ * (steady weather: an hourly PC, so the shortest averaging period; a wind rose or an hourly series: a
+ * mean, so a long-term standard). Null when the scenario has no standards.
  *
  * @throws RangeError when the named standard is not among the scenario's
  */
-export function chooseStandard(standards: readonly AirQualityStandard[], weatherKind: 'steady' | 'windRose', name?: string): AirQualityStandard | null {
+export function chooseStandard(standards: readonly AirQualityStandard[], weatherKind: 'steady' | 'windRose' | 'hourly', name?: string): AirQualityStandard | null {
   if (name !== undefined) {
     const named = standards.find((standard) => standard.name === name);
     if (named === undefined) {
@@ -57,6 +57,6 @@ export function chooseStandard(standards: readonly AirQualityStandard[], weather
     return named;
   }
   if (standards.length === 0) return null;
-  if (weatherKind === 'windRose') return standards.find(isLongTerm) ?? null;
+  if (weatherKind !== 'steady') return standards.find(isLongTerm) ?? null;
   return [...standards].sort((a, b) => a.averaging_h - b.averaging_h)[0];
 }

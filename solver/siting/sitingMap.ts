@@ -2,8 +2,9 @@
  * The siting map: for each sensitive receptor, its process contribution (PC) [ug/m3] if the stack stood at
  * each grid column centre, and their combination (the highest over the receptors, or a weighted sum).
  *
- * - Grid mode: one steady adjoint solve per receptor and weather state (./adjointSolve.ts), read at the
- *   stack's effective height. Linear in the emission, so the map is Q x the adjoint at height H.
+ * - Grid mode: one steady adjoint solve per receptor and weather state (./adjointSolve.ts), read the way
+ *   the forward run releases the stack: through its near-field plan (the sub-grid plume's hand-over cells
+ *   and rates, plus the sub-grid plume's own value at the receptor; ./nearFieldAdjoint.ts).
  * - Gaussian mode: the same plume (../reference/sourcePlumes.ts pointSourcePlume) evaluated directly
  *   from every column centre to every receptor.
  * - Weather: one steady state, or several with weights (a wind rose's cells and frequencies: the map is
@@ -13,13 +14,14 @@
  * emission) at every position; effective heights that do not depend on position (plume rise depends on
  * the weather only); no building downwash; the other sources of the scenario are not included.
  */
-import { fieldAtHeight } from '../diagnostics/receptorSampling.ts';
-import { gridModelParts, MICROGRAMS_PER_GRAM, releaseHeights_m } from '../drivers/gridSteady.ts';
+import { DEFAULT_NEAR_FIELD, gridModelParts, MICROGRAMS_PER_GRAM, releaseHeights_m } from '../drivers/gridSteady.ts';
 import { pointSourcePlume } from '../reference/sourcePlumes.ts';
 import type { PlacedPointSource, PlacedReceptor, ResolvedWeather, RunControl, SteadyRunInput } from '../drivers/types.ts';
 import type { LocalGrid } from '../grid/types.ts';
 import type { SolverMode } from '../../scenarios/format/types.ts';
+import type { NearFieldTreatment } from '../sources/nearField.ts';
 import { partOfProgress, solveReceptorAdjoint } from './adjointSolve.ts';
+import { addNearFieldMaps, type ReceptorAdjointField } from './nearFieldAdjoint.ts';
 
 /** A weather state and its weight in the map (1 for a steady state; a rose cell's frequency). */
 export interface WeightedWeather {
@@ -39,6 +41,13 @@ export interface SitingMapOptions {
   /** relative tolerance of the adjoint solves (default the forward steady solve's, 1e-6) */
   tolerance?: number;
   control?: RunControl;
+  /**
+   * Grid mode: how the stack reaches the grid, as in the forward runs the map stands for (default the
+   * forward solve's, DEFAULT_NEAR_FIELD: the sub-grid plume). ./nearFieldAdjoint.ts says how it enters.
+   */
+  nearField?: NearFieldTreatment;
+  /** Grid mode: positions (candidates) whose receptor values are wanted exactly, each with its own near-field plan */
+  exactAt?: readonly { x_m: number; y_m: number }[];
 }
 
 /** The limits of the map, stated in every output. */
@@ -71,6 +80,8 @@ export interface SitingMap {
   solves: number;
   /** steady sweeps of the adjoint solves in all (grid mode; 0 in Gaussian mode) */
   sweeps: number;
+  /** exact near-field plans made for the map and the exact positions (grid mode; 0 in Gaussian mode) */
+  nearFieldPlans: number;
   wallSeconds: number;
   notes: string[];
 }
@@ -114,9 +125,10 @@ function receptorWeightsOf(combination: ReceptorCombination | undefined): number
 export type PcAt = (receptorIndex: number, x_m: number, y_m: number) => number;
 
 /**
- * Bilinear reading of a column-centre map at (x, y) [m]: the same horizontal weights as a point
- * release (../sources/gridEmission.ts), so for the grid map this is exactly the receptor's PC from a
- * stack at (x, y) (the adjoint sampled with the release's trilinear weights).
+ * Bilinear reading of a column-centre map at (x, y) [m]. With a direct release this is exactly the
+ * receptor's PC from a stack at (x, y) (the same horizontal weights as a point release,
+ * ../sources/gridEmission.ts); with the sub-grid plume it interpolates between the positions the map
+ * holds, so the positions wanted exactly (candidates) are passed as exactAt instead.
  */
 export function bilinearAt(grid: LocalGrid, map: Float64Array, x_m: number, y_m: number): number {
   const bracket = (fractional: number, count: number): [number, number] => {
@@ -139,7 +151,7 @@ export function bilinearAt(grid: LocalGrid, map: Float64Array, x_m: number, y_m:
  * @param base grid, receptors, pollutant, dispersion, land use, wind profile
  * @param stack the stack being sited (its position is ignored; everything else is used)
  * @param weathers weather states with weights summing to 1
- * @returns the map and, for candidates, the receptors' PC at any position (bilinear in the map: exact)
+ * @returns the map and the receptors' PC at any position (exact at options.exactAt, else bilinear in the map)
  * @example const { map } = gridSitingMap(base, stack, [{ weather, weight: 1 }]);
  */
 export function gridSitingMap(base: SitingBase, stack: PlacedPointSource, weathers: readonly WeightedWeather[], options: SitingMapOptions = {}): { map: SitingMap; pcAt: PcAt } {
@@ -148,11 +160,15 @@ export function gridSitingMap(base: SitingBase, stack: PlacedPointSource, weathe
   const { grid, receptors } = base;
   const control = options.control ?? {};
   const perReceptor = receptors.map(() => new Float64Array(grid.nx * grid.ny));
-  const layer = new Float64Array(grid.nx * grid.ny);
+  const exactAt = options.exactAt ?? [];
+  const exactValues = exactAt.map(() => new Array<number>(receptors.length).fill(0));
+  const nearField = options.nearField ?? DEFAULT_NEAR_FIELD;
   const effectiveHeights_m: number[] = [];
+  const handovers_m: number[] = [];
   let sweeps = 0;
   let solves = 0;
   let unconverged = 0;
+  let plans = 0;
   const total = weathers.length * receptors.length;
   weathers.forEach(({ weather, weight }, w) => {
     const input = { ...base, sources: [stack], weather };
@@ -160,20 +176,24 @@ export function gridSitingMap(base: SitingBase, stack: PlacedPointSource, weathe
     effectiveHeights_m.push(height_m);
     if (weight === 0) return;
     const parts = gridModelParts(input, weather, [height_m]);
-    receptors.forEach((receptor: PlacedReceptor, r) => {
+    const adjoints: ReceptorAdjointField[] = receptors.map((receptor: PlacedReceptor, r) => {
       const solveControl = partOfProgress(control, w * receptors.length + r, total, `adjoint of ${receptor.id}`);
       const { model, report } = solveReceptorAdjoint(parts, receptor, { tolerance: options.tolerance, control: solveControl });
       sweeps += report.sweeps;
       solves++;
       if (!report.converged) unconverged++;
-      fieldAtHeight(grid, model.layout, model.field, height_m, stack.emission_g_s * MICROGRAMS_PER_GRAM * weight, layer);
-      const map = perReceptor[r];
-      for (let n = 0; n < map.length; n++) map[n] += layer[n];
+      return { receptor, layout: model.layout, field: model.field };
     });
+    control.signal?.throwIfAborted();
+    const report = addNearFieldMaps({ treatment: nearField, context: { ...input, grid }, stack, height_m }, adjoints, MICROGRAMS_PER_GRAM * weight, perReceptor, exactAt, exactValues, control.signal);
+    plans += report.plans;
+    handovers_m.push(report.handover_m);
   });
   const { combined, label } = combineReceptors(perReceptor, options.combination ?? { kind: 'highest' });
   const notes = [
     `grid mode: one steady adjoint solve per receptor and weather state (${solves} solves, ${sweeps} sweeps): the wind reversed, the same diffusivities, losses, ground and lid, the receptor's sampling as the source, the transposed open sides`,
+    `near field as in the forward runs (${nearField.name}): each position's hand-over cells and rates read from the adjoint, plus the sub-grid plume's own value at the receptor` +
+      (handovers_m.some((value) => value > 0) ? ` (hand-over ${Math.round(Math.min(...handovers_m.filter((value) => value > 0)))} m downwind or nearer the downwind edge; ${plans} near-field plans made)` : ''),
     'agreement with forward runs: exact for first-order upwind advection; with the default limited scheme the adjoint differs from a forward run by the scheme\'s discretisation error (see docs/siting.md for the measured figures)',
   ];
   if (unconverged > 0) notes.push(`${unconverged} adjoint solves did NOT converge within the sweep limit: figures are approximate`);
@@ -191,10 +211,16 @@ export function gridSitingMap(base: SitingBase, stack: PlacedPointSource, weathe
     receptorWeights: receptorWeightsOf(options.combination),
     solves,
     sweeps,
+    nearFieldPlans: plans,
     wallSeconds: (performance.now() - started) / 1000,
     notes,
   };
-  return { map, pcAt: (r, x_m, y_m) => bilinearAt(grid, perReceptor[r], x_m, y_m) };
+  const exactIndex = new Map(exactAt.map(({ x_m, y_m }, n) => [`${x_m},${y_m}`, n]));
+  const pcAt: PcAt = (r, x_m, y_m) => {
+    const n = exactIndex.get(`${x_m},${y_m}`);
+    return n === undefined ? bilinearAt(grid, perReceptor[r], x_m, y_m) : exactValues[n][r];
+  };
+  return { map, pcAt };
 }
 
 /**
@@ -250,6 +276,7 @@ export function gaussianSitingMap(base: SitingBase, stack: PlacedPointSource, we
     receptorWeights: receptorWeightsOf(options.combination),
     solves: grid.nx * grid.ny * receptors.length * weathers.length,
     sweeps: 0,
+    nearFieldPlans: 0,
     wallSeconds: (performance.now() - started) / 1000,
     notes: [`Gaussian mode: the stack's steady plume evaluated directly from every column centre to every receptor (${weathers.length} weather state${weathers.length === 1 ? '' : 's'})`],
   };

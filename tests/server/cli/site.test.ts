@@ -1,7 +1,7 @@
 /**
  * Behaviour checks of `plumeplan site`, in process: help, a grid-mode siting of a coarse demo with a
- * candidate file and a site polygon (exit 0, the four files, what stdout says), and input errors (exit 2,
- * the option or field named) and a capability not built (exit 1).
+ * candidate file and a site polygon (exit 0, the four files, what stdout says), an hourly series, and input
+ * errors (exit 2, the option or field named) and a capability not built (exit 1). Ctrl-C: siteInterrupt.test.ts.
  */
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -82,11 +82,11 @@ describe('plumeplan site', () => {
     const json = JSON.parse(readFileSync(path.join(out, 'siting.json'), 'utf8'));
     expect(json.candidates.some((candidate: { id: string }) => candidate.id === 'yard-north')).toBe(true);
     expect(json.agreement.forwardRuns).toBe(3);
-    // The map is the direct release's adjoint; the forward runs carry the stack as a sub-grid plume first
-    // (docs/siting.md, The near field), so at these 400 m cells they differ by much more than before:
-    // measured 0.58 of the largest PC (under 0.1 before the sub-grid plume). The figure is what the user
-    // is shown; a near-field adjoint would bring it down.
-    expect(json.agreement.largestDifferenceFractionOfPeak).toBeLessThan(0.7);
+    // Map and forward runs both carry the stack as a sub-grid plume first (docs/siting.md, The near field);
+    // what is left is the limited scheme's discretisation error, larger on these coarse 200 m cells than
+    // on the solver tests' 25 m: measured 1.7 % of the largest PC (0.58 while the map released the stack
+    // straight into the grid). Asserted below 5 %.
+    expect(json.agreement.largestDifferenceFractionOfPeak).toBeLessThan(0.05);
   });
 
   it.each([
@@ -116,13 +116,22 @@ describe('plumeplan site', () => {
     expect(existsSync(path.join(scratch, 'bad'))).toBe(false);
   });
 
-  it('an hourly series is not mapped yet: exit 1, saying what to use instead', async () => {
+  it('an hourly series is mapped as its mean (exit 0); a screening set is not built (exit 1, saying what to use)', async () => {
     const run = capture();
     const hourly = coarseDemo((scenario) => {
       const { kind: _kind, ...fields } = scenario.weather;
-      scenario.weather = { kind: 'hourly', hours: [{ ...fields, time: '2026-01-05T10:00:00Z' }] };
+      scenario.weather = { kind: 'hourly', hours: [{ ...fields, time: '2026-01-05T10:00:00Z' }, { ...fields, time: '2026-01-05T11:00:00Z' }, { ...fields, windFrom_deg: 200, time: '2026-01-05T12:00:00Z' }] };
     });
-    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian'], run.io, inProcess)).toBe(1);
-    expect(run.stderr()).toMatch(/hourly series is not built yet: give the weather as a wind rose/);
+    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian'], run.io, inProcess), run.stderr()).toBe(0);
+    expect(run.stdout()).toMatch(/long-term mean PC/);
+    const json = JSON.parse(readFileSync(path.join(scratch, 'hourly', 'siting.json'), 'utf8'));
+    expect(json.weatherKind).toBe('hourly');
+    expect(json.notes.join(' ')).toMatch(/hourly series of 3 hours, 2 distinct weather states/);
+    const set = capture();
+    const screening = coarseDemo((scenario) => {
+      scenario.weather = { kind: 'screeningSet', sectors: 12, rain_mm_h: 0, airTemperature_K: 283, anemometerHeight_m: 10 };
+    });
+    expect(await main(['site', screening, '--out', path.join(scratch, 'set'), '--mode', 'gaussian'], set.io, inProcess)).toBe(1);
+    expect(set.stderr()).toMatch(/weather of kind "screeningSet" is not built: give steady weather, a wind rose or an hourly series/);
   });
 });

@@ -134,7 +134,7 @@ describe('analysis runs', () => {
     expect(names).toEqual(['candidates.csv', 'siting-map.tif', 'siting.geojson', 'siting.json']);
     expect(run.results.find((file) => file.name === 'siting-map.tif')?.contentType).toBe('image/tiff');
     const result = await computeSiting(scenario, { mode: 'gaussian', candidates, spacing_m: 100 }, undefined, {});
-    await expectSameFiles(id, buildSitingFiles(result, { site: scenario.site }), withoutRunTimings);
+    await expectSameFiles(id, await buildSitingFiles(result, { site: scenario.site }), withoutRunTimings);
   });
 
   let scenarioRunA: string;

@@ -1,7 +1,14 @@
 /**
- * The siting folder (server/writers/siting.ts, localGeoTiff.ts) read back by outside tools: GDAL's
- * gdalinfo and gdallocationinfo for the GeoTIFF (its CRS, its geotransform, values at points given in
- * WGS 84 and the nodata outside the site), ogrinfo for the GeoJSON; and the CSV's RFC 4180 form.
+ * The siting folder (server/writers/siting.ts, its rasters by the pack's writer groundGeoTiff.ts) read
+ * back by outside tools: GDAL's gdalinfo and gdallocationinfo for the GeoTIFFs (the site's UTM zone,
+ * nodata, the caution, values at points given in WGS 84 and nodata off the site), ogrinfo for the
+ * GeoJSON; and the CSV's RFC 4180 form.
+ *
+ * Resampling tolerance, stated (as in groundGeoTiff.test.ts): nearest-cell resampling onto UTM pixels the
+ * size of the grid's cells, so the pixel gdallocationinfo picks has its centre within half a pixel
+ * diagonal (0.71 spacing) of the point, and that centre lies in a grid column whose centre is within
+ * another 0.71 spacing: the value read must be EXACTLY (to float32) the map value of a column within
+ * 1.42 spacings of the point.
  */
 import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -47,40 +54,61 @@ beforeAll(async () => {
   files = await writeSitingFolder(scratch, result, { site });
 });
 
-describe('siting-map.tif read by GDAL', () => {
-  it('has the grid size, one band per map, the local transverse Mercator and the grid corner', () => {
-    const info = JSON.parse(execFileSync('gdalinfo', ['-json', path.join(scratch, 'siting-map.tif')], { encoding: 'utf8' }));
-    expect(info.size).toEqual([result.grid.nx, result.grid.ny]);
-    expect(info.bands).toHaveLength(1 + result.receptors.length);
-    expect(info.bands[0].type).toBe('Float32');
-    const wkt: string = info.coordinateSystem.wkt;
-    expect(wkt).toMatch(/Transverse Mercator/);
-    expect(wkt).toMatch(new RegExp(`"Latitude of natural origin",${site.lat}`));
-    expect(wkt).toMatch(new RegExp(`"Longitude of natural origin",${site.lon}`));
-    expect(info.geoTransform).toEqual([result.grid.xWest_m, result.grid.spacing_m, 0, result.grid.ySouth_m + result.grid.ny * result.grid.spacing_m, 0, -result.grid.spacing_m]);
-    expect(info.metadata[''].TIFFTAG_IMAGEDESCRIPTION).toContain(SCREENING_CAUTION);
+/** Map values of the columns whose centres lie within `spacings` cell spacings of local (x, y). */
+function columnsNear(map: Float64Array, x_m: number, y_m: number, spacings: number): number[] {
+  const { grid } = result;
+  const nearby: number[] = [];
+  for (let j = 0; j < grid.ny; j++) {
+    for (let i = 0; i < grid.nx; i++) {
+      const cx = grid.xWest_m + (i + 0.5) * grid.spacing_m;
+      const cy = grid.ySouth_m + (j + 0.5) * grid.spacing_m;
+      if (Math.hypot(cx - x_m, cy - y_m) <= spacings * grid.spacing_m) nearby.push(map[i + grid.nx * j]);
+    }
+  }
+  return nearby;
+}
+
+const valuesAt = (file: string, x_m: number, y_m: number): string =>
+  execFileSync('gdallocationinfo', ['-valonly', '-wgs84', path.join(scratch, file), ...lonLat(x_m, y_m).map(String)], { encoding: 'utf8' }).trim();
+
+describe('siting-map.tif (and one per receptor) read by GDAL', () => {
+  it('is a float32 raster in the site UTM zone (EPSG:32630 at 1.72 W) with nodata -9999 and the caution', () => {
+    for (const file of ['siting-map.tif', 'siting-map-houses.tif', 'siting-map-nursery.tif']) {
+      const info = JSON.parse(execFileSync('gdalinfo', ['-json', path.join(scratch, file)], { encoding: 'utf8' }));
+      expect(info.bands, file).toHaveLength(1);
+      expect(info.bands[0].type).toBe('Float32');
+      expect(info.bands[0].noDataValue).toBe(-9999);
+      expect(info.coordinateSystem.wkt).toMatch(/ID\["EPSG",32630\]\]$/);
+      expect(info.geoTransform[1]).toBe(result.grid.spacing_m);
+      const description: string = info.metadata[''].TIFFTAG_IMAGEDESCRIPTION;
+      expect(description).toContain(SCREENING_CAUTION);
+      expect(description).toMatch(/Siting map: steady-weather/);
+      expect(description).toContain(file === 'siting-map.tif' ? 'highest PC at the receptors' : `PC at ${file.slice(11, -4)}`);
+    }
   });
 
-  it('gives the map values at WGS 84 points (gdallocationinfo), nodata outside the site', () => {
-    const valuesAt = (lon: number, lat: number): string[] =>
-      execFileSync('gdallocationinfo', ['-valonly', '-wgs84', path.join(scratch, 'siting-map.tif'), String(lon), String(lat)], { encoding: 'utf8' }).trim().split('\n');
-    // the column centred at (125, -75) m lies inside the site
-    const i = Math.round((125 - result.grid.xWest_m) / result.grid.spacing_m - 0.5);
-    const j = Math.round((-75 - result.grid.ySouth_m) / result.grid.spacing_m - 0.5);
-    const column = i + result.grid.nx * j;
-    const [lon, lat] = lonLat(125, -75);
-    const values = valuesAt(lon, lat).map(Number);
-    expect(values[0]).toBeCloseTo(result.map.combined_ug_m3[column], 6);
-    expect(Math.abs(values[1] / result.map.perReceptor_ug_m3[0][column] - 1)).toBeLessThan(1e-6);
-    expect(values[0]).toBeGreaterThan(0);
-    const outside = valuesAt(...lonLat(700, 700));
-    expect(outside[0]).toMatch(/nan/i);
+  it('gives the map values at WGS 84 points inside the site (gdallocationinfo), nodata off it', () => {
+    const maps: [string, Float64Array][] = [
+      ['siting-map.tif', result.map.combined_ug_m3],
+      ['siting-map-houses.tif', result.map.perReceptor_ug_m3[0]],
+      ['siting-map-nursery.tif', result.map.perReceptor_ug_m3[1]],
+    ];
+    for (const [file, map] of maps) {
+      for (const [x, y] of [[125, -75], [-100, 100], [0, 0]]) {
+        const value = Number(valuesAt(file, x, y));
+        const nearby = columnsNear(map, x, y, 1.42);
+        expect(nearby.some((cell) => Math.fround(cell) === Math.fround(value)), `${file} at (${x}, ${y}): ${value} is no nearby column's value`).toBe(true);
+        expect(value).toBeGreaterThan(0);
+      }
+      // 700 m from the site's 200 m square: off the site, inside the grid
+      expect(Number(valuesAt(file, 700, 700)), file).toBe(-9999);
+    }
   });
 });
 
 describe('siting.geojson, candidates.csv, siting.json', () => {
-  it('writes the four files', () => {
-    expect(files.slice(0, 4)).toEqual(['siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson']);
+  it('writes the four files and a raster per receptor', () => {
+    expect(files).toEqual(['siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson', 'siting-map-houses.tif', 'siting-map-nursery.tif']);
   });
 
   it('siting.geojson is read by ogrinfo and carries the caution, the best position and the bands', () => {
@@ -110,6 +138,7 @@ describe('siting.geojson, candidates.csv, siting.json', () => {
     expect(json.limits).toHaveLength(4);
     expect(json.candidates.map((candidate: { rank: number }) => candidate.rank)).toEqual(result.candidates.map((_, n) => n + 1));
     expect(json.best.within).toBe('site polygon');
-    expect(json.map.bands).toEqual(['1: highest of 2 receptors', '2: PC at houses', '3: PC at nursery']);
+    expect(json.map.rasters.combined).toBe('siting-map.tif');
+    expect(json.map.rasters.perReceptor).toEqual({ houses: 'siting-map-houses.tif', nursery: 'siting-map-nursery.tif' });
   });
 });

@@ -15,7 +15,7 @@ import { describe, expect, it } from 'vitest';
 import { parseScenario } from '../../../scenarios/format/schema.ts';
 import type { Scenario } from '../../../scenarios/format/types.ts';
 import { createLocalProjection } from '../../../solver/grid/projection.ts';
-import { ScenarioInputError } from '../../../solver/drivers/runScenario.ts';
+import { runScenario, ScenarioInputError } from '../../../solver/drivers/runScenario.ts';
 import { runSiting } from '../../../solver/siting/runSiting.ts';
 import { latticeInsideRing, lowestColumn } from '../../../solver/siting/candidates.ts';
 import { isInsideRing } from '../../../solver/grid/siteBoundary.ts';
@@ -87,14 +87,15 @@ describe('runSiting on a case with a known answer', () => {
     });
   }
 
-  it('grid: the map agrees with forward runs at the candidates (within 12 % of the largest PC, near field included)', async () => {
-    // The map is the adjoint of the direct release; the forward runs carry stacks as a sub-grid plume
-    // first (docs/near-field.md), so the agreement measures the near field's difference too
-    // (docs/siting.md, The near field): measured 9.8 % on this layout, 2.7 % before the sub-grid plume.
+  it('grid: the map agrees with forward runs at the candidates (within 1 % of the largest PC, near field included)', async () => {
+    // The forward runs carry the stack as a sub-grid plume first (docs/near-field.md) and so does the map
+    // (solver/siting/nearFieldAdjoint.ts): what is left is the limited scheme's discretisation error
+    // (tests/solver/siting/nearFieldAdjoint.test.ts bounds it at 24 positions). Measured 0.12 % here (9.8 %
+    // while the map released the stack straight into the grid).
     const result = await runSiting(scenario(), { mode: 'grid', candidates, forwardRuns: 4 });
     expect(result.forwardRunCount).toBe(4);
     expect(result.forwardAgreement).not.toBeNull();
-    expect(result.forwardAgreement as number).toBeLessThan(0.12);
+    expect(result.forwardAgreement as number).toBeLessThan(0.01);
     const east = result.candidates.find((candidate) => candidate.id === 'axis-east');
     expect(east?.groundPeak_ug_m3).toBeGreaterThan(0);
     expect(east?.areaAboveLevel_m2).not.toBeNull();
@@ -122,6 +123,43 @@ describe('runSiting on a case with a known answer', () => {
       for (const n of [0, 700, 1234, 1800, 1830]) {
         expect(Math.abs(mean.map.combined_ug_m3[n] - (0.3 * west.map.combined_ug_m3[n] + 0.7 * east.map.combined_ug_m3[n]))).toBeLessThan(1e-9 * largest);
       }
+    });
+  }
+
+  for (const [mode, bound] of [['gaussian', 1e-9], ['grid', 0.01]] as const) {
+    it(`${mode}: an hourly series gives the mean over its hours, equal to forward series runs of the stack at each candidate (within ${bound} of the largest)`, async () => {
+      // Six hours, two of them identical (grouped into one weather state of weight 2/6), the others
+      // differing in direction, speed, class or mixing height: five distinct states. The forward check is
+      // the product's own series run (runScenario, each hour a steady state, the receptor's period mean),
+      // with the stack moved to the candidate: it never groups hours or reads an adjoint.
+      const hour = { windSpeed_m_s: 5, windFrom_deg: 270, stability: 'D', mixingHeight_m: 500, rain_mm_h: 0, airTemperature_K: 285, anemometerHeight_m: 10 };
+      const hours = [
+        { ...hour, time: '2026-03-02T10:00:00Z' },
+        { ...hour, time: '2026-03-02T11:00:00Z' },
+        { ...hour, windFrom_deg: 250, time: '2026-03-02T12:00:00Z' },
+        { ...hour, windSpeed_m_s: 3, stability: 'C', time: '2026-03-02T13:00:00Z' },
+        { ...hour, windFrom_deg: 290, mixingHeight_m: 300, time: '2026-03-02T14:00:00Z' },
+        { ...hour, windSpeed_m_s: 8, time: '2026-03-02T15:00:00Z' },
+      ];
+      const series = scenario({ weather: { kind: 'hourly', hours } });
+      const few = candidates.slice(0, 2);
+      const result = await runSiting(series, { mode, candidates: few, forwardRuns: 0 });
+      expect(result.statistic).toBe('mean');
+      expect(result.map.weights).toHaveLength(5);
+      expect(Math.max(...result.map.weights)).toBeCloseTo(2 / 6, 12);
+      expect(result.notes.join(' ')).toMatch(/hourly series of 6 hours, 5 distinct weather states/);
+      const forward: number[] = [];
+      for (const candidate of few) {
+        const moved = { ...series, sources: [{ ...series.sources[0], lon: candidate.lon, lat: candidate.lat }] };
+        const run = await runScenario(moved, { mode });
+        forward.push(run.receptorColumns.find((column) => column.key === 'mean_ug_m3')!.values[0]);
+      }
+      const largest = Math.max(...forward);
+      expect(largest).toBeGreaterThan(1);
+      few.forEach((candidate, n) => {
+        const mapped = result.candidates.find((ranked) => ranked.id === candidate.id)!.receptorPc_ug_m3[0];
+        expect(Math.abs(mapped - forward[n]), `${candidate.id}: map ${mapped}, series run ${forward[n]}`).toBeLessThan(bound * largest);
+      });
     });
   }
 
