@@ -131,7 +131,8 @@ describe('analysis runs', () => {
     const run = await finished(id);
     expect(run.status, JSON.stringify(run.error)).toBe('done');
     const names = run.results.map((file) => file.name).sort();
-    expect(names).toEqual(['candidates.csv', 'siting-map.tif', 'siting.geojson', 'siting.json']);
+    // the combined map, then one raster per receptor (the demo's three, at most MAX_RECEPTOR_RASTERS)
+    expect(names).toEqual(['candidates.csv', 'siting-map-care-home.tif', 'siting-map-fennick-row.tif', 'siting-map-school.tif', 'siting-map.tif', 'siting.geojson', 'siting.json']);
     expect(run.results.find((file) => file.name === 'siting-map.tif')?.contentType).toBe('image/tiff');
     const result = await computeSiting(scenario, { mode: 'gaussian', candidates, spacing_m: 100 }, undefined, {});
     await expectSameFiles(id, await buildSitingFiles(result, { site: scenario.site }), withoutRunTimings);
