@@ -50,6 +50,7 @@ export function runSitingInWorker(scenario: Scenario, options: SitingOptions = {
     const onAbort = (): void => finish(() => reject(abortError()));
     control?.signal?.addEventListener('abort', onAbort, { once: true });
     worker.on('message', (reply: SiteWorkerReply) => {
+      if (settled) return; // a message already on its way when the thread was stopped
       if (reply.type === 'progress') control?.onProgress?.(reply.fractionDone, reply.message);
       else if (reply.type === 'result') {
         const projection = createLocalProjection(scenario.site);

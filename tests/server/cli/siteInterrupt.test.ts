@@ -1,7 +1,8 @@
 /**
  * Ctrl-C during `plumeplan site`'s adjoint solves, in a child process (the real command line, bin/
  * plumeplan.mjs): the command exits with 130 (128 + SIGINT, the shell convention), says it was
- * interrupted, prints no stack trace, and leaves no siting folder behind that could pass for a result.
+ * interrupted, prints no stack trace, reports no further work after the signal, and leaves no siting
+ * folder behind that could pass for a result.
  */
 import { spawn } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -26,12 +27,14 @@ describe('plumeplan site and Ctrl-C', () => {
     let stderr = '';
     let stdout = '';
     let sent = false;
+    let atSignal = 0;
     child.stdout.on('data', (chunk) => (stdout += chunk));
     child.stderr.on('data', (chunk) => {
       stderr += chunk;
       // progress lines name the solve under way; interrupt inside the first adjoint solve
       if (!sent && /adjoint of/.test(stderr)) {
         sent = true;
+        atSignal = stderr.length;
         child.kill('SIGINT');
       }
     });
@@ -42,6 +45,10 @@ describe('plumeplan site and Ctrl-C', () => {
     expect(stderr).toMatch(/plumeplan site: interrupted; no results written/);
     expect(stderr).not.toMatch(/\n\s+at \S+/); // no stack trace
     expect(stdout).not.toMatch(/Results written/);
+    // it stopped there: no more work reported after the signal (at most one progress line already on its
+    // way), where an in-process solve would have gone on reporting its sweeps until it finished
+    const after = stderr.slice(atSignal).split('\n').filter((line) => line.trim() !== '' && !/interrupted; no results written/.test(line));
+    expect(after.length, after.join('\n')).toBeLessThanOrEqual(1);
     expect(existsSync(path.join(out, 'siting.json'))).toBe(false);
     expect(existsSync(out)).toBe(false);
   }, 240_000);
