@@ -40,6 +40,16 @@ export const runRequestSchema = z.strictObject({
   scenarioId: idSchema,
   revision: revisionNumber.optional().describe('default: the latest'),
   mode: modeField,
+  levels_ug_m3: levelsField.describe(
+    "footprint levels [ug/m3], positive and increasing (plumeplan run's --levels); with percentOf, percentages of that standard's limit; default: round numbers (1-2-5 series) across the field's range",
+  ),
+  percentOf: z
+    .string()
+    .min(1)
+    .max(200)
+    .optional()
+    .describe("read levels_ug_m3 as percentages of this assessed standard's limit (--percent-of); without levels: 1, 10, 50, 100 %"),
+  resolutionCheck: z.boolean().optional().describe('steady grid runs: solve again at half the cell size and report the change (--resolution-check); default: only when the finer grid is small'),
   pack: z
     .enum(PACK_CHOICES)
     .optional()

@@ -12,6 +12,7 @@ import { MAX_SWEEP_VALUES } from '../analyses/sweep.ts';
 import { parseCandidates, parseSitePolygon, SitingInputError } from '../analyses/siting.ts';
 import { resolveStackHeightTarget, STACK_HEIGHT_DEFAULTS, TargetError, type StackHeightRequest } from '../analyses/stackHeight.ts';
 import { RESULT_NAME_PATTERN } from '../storage/resultFiles.ts';
+import { resolveLevels } from '../cli/run.ts';
 import { allowedCrsText, resolveCrs } from '../writers/crs.ts';
 import { RunRefusedError } from './admission.ts';
 import type { PackChoice } from './runExecutor.ts';
@@ -166,23 +167,46 @@ export function admitSite(scenario: Scenario, input: SiteOptionsInput): Record<s
 }
 
 export interface ScenarioPackInput {
+  levels_ug_m3?: number[];
+  percentOf?: string;
+  resolutionCheck?: boolean;
   pack?: PackChoice;
   crs?: string | number;
   contextLayers?: { name: string; features: unknown }[];
 }
 
+/** The options of a scenario run that make its pack, not its core files. */
+const PACK_OPTIONS = ['pack', 'crs', 'contextLayers'] as const;
+
+/** A scenario run's options without its pack's: what its core files depend on. */
+export function withoutPack(options: Record<string, unknown>): Record<string, unknown> {
+  const rest = { ...options };
+  for (const key of PACK_OPTIONS) delete rest[key];
+  return rest;
+}
+
 /**
- * A scenario run's pack options: which pack, the CRS of ground.tif and the map (checked with the
- * writers' own resolveCrs), the context layers (GeoJSON Features with geometry). Without a pack the
- * options are none at all, so such a run is identical to one from before packs existed.
- * @throws RunRefusedError (400) naming crs, contextLayers[i]...
+ * A scenario run's own options, as plumeplan run's: footprint levels (in ug/m3, or as percentages of
+ * an assessed standard with percentOf, checked with the CLI's resolveLevels), the resolution check,
+ * and the pack: which, the CRS of ground.tif and the map (checked with the writers' own resolveCrs),
+ * the context layers (GeoJSON Features with geometry). Options left at their defaults are left out, so
+ * a plain run is identical to one from before these options existed.
+ * @throws RunRefusedError (400, 422) naming percentOf, crs, contextLayers[i]...
  */
-export function admitScenarioPack(_scenario: Scenario, input: ScenarioPackInput): Record<string, unknown> {
+export function admitScenarioPack(scenario: Scenario, input: ScenarioPackInput): Record<string, unknown> {
+  const core: Record<string, unknown> = {};
+  if (input.levels_ug_m3 !== undefined) core.levels_ug_m3 = input.levels_ug_m3;
+  if (input.percentOf !== undefined) {
+    const levels = resolveLevels(scenario, { levels_ug_m3: input.levels_ug_m3, percentOf: input.percentOf });
+    if (typeof levels === 'string') refuse('percentOf', input.percentOf, "an assessed standard's name", levels.replace(/^--percent-of: /, 'percentOf: '));
+    core.percentOf = input.percentOf;
+  }
+  if (input.resolutionCheck === true) core.resolutionCheck = true;
   const pack = input.pack ?? 'none';
   if (pack === 'none') {
     if (input.crs !== undefined) refuse('crs', input.crs, 'crs only with pack "quick" or "full"', 'crs: the CRS of ground.tif and the map figure needs pack "quick" or "full"', 400);
     if (input.contextLayers !== undefined) refuse('contextLayers', undefined, 'contextLayers only with pack "quick" or "full"', 'contextLayers: the map figure\'s layers need pack "quick" or "full"', 400);
-    return {};
+    return core;
   }
   let crs: string | undefined;
   if (input.crs !== undefined) {
@@ -205,7 +229,7 @@ export function admitScenarioPack(_scenario: Scenario, input: ScenarioPackInput)
       }
     });
   });
-  return { pack, ...(crs !== undefined ? { crs } : {}), ...(input.contextLayers !== undefined ? { contextLayers: input.contextLayers } : {}) };
+  return { ...core, pack, ...(crs !== undefined ? { crs } : {}), ...(input.contextLayers !== undefined ? { contextLayers: input.contextLayers } : {}) };
 }
 
 /** The options of runs with larger packs (same CRS and layers), whose files include these options' files. */

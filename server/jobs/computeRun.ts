@@ -15,8 +15,8 @@ import { GROUND_LEVEL_HEIGHT_m } from '../../solver/drivers/steadyScenario.ts';
 import type { RunControl } from '../../solver/drivers/types.ts';
 import { checkScenarioGeometry } from '../scenarioFiles/semantics.ts';
 import type { ResultFileContent } from '../storage/resultFiles.ts';
-import type { RunError } from '../storage/runStore.ts';
 import { encodeGroundField, GROUND_FIELD_CONTENT_TYPE, GROUND_FIELD_FILE } from '../writers/groundField.ts';
+import { resolveLevels } from '../cli/run.ts';
 import type { ContextLayer } from '../writers/map/mapSvg.ts';
 import { runProvenance } from '../writers/provenance.ts';
 import { buildConsultationPack, buildResultFiles, FOOTPRINT_FILE, RECEPTORS_FILE, SUMMARY_FILE, WIND_ROSE_FILE } from '../writers/writeResultFolder.ts';
@@ -73,7 +73,7 @@ async function computeScenarioRun(job: RunJob, control: RunControl): Promise<Res
   const mode = job.options.mode as SolverMode | undefined;
   let result;
   try {
-    result = await runScenario(scenario, { mode, control });
+    result = await runScenario(scenario, { mode, control, resolutionCheck: job.options.resolutionCheck === true ? 'always' : 'auto' });
   } catch (error) {
     if (error instanceof ScenarioInputError) throw new RunInputError(inputErrorDetail(error.message));
     if (error instanceof UnavailableError) {
@@ -82,7 +82,10 @@ async function computeScenarioRun(job: RunJob, control: RunControl): Promise<Res
     throw error;
   }
   control.onProgress?.(1, 'writing the results');
-  const built = buildResultFiles(scenario, result);
+  // Footprint levels as plumeplan run takes them (--levels, --percent-of): checked before queuing.
+  const levels = resolveLevels(scenario, { levels_ug_m3: job.options.levels_ug_m3 as number[] | undefined, percentOf: job.options.percentOf as string | undefined });
+  if (typeof levels === 'string') throw new RunInputError({ error: levels, field: 'percentOf', value: job.options.percentOf });
+  const built = buildResultFiles(scenario, result, levels);
   const encoder = new TextEncoder();
   const files: ResultFileContent[] = built.contents.map(([name, text]) => ({
     name,
@@ -94,6 +97,7 @@ async function computeScenarioRun(job: RunJob, control: RunControl): Promise<Res
   if (pack !== 'none') {
     control.onProgress?.(1, pack === 'full' ? 'writing the report, the map figures and the zip' : 'writing the map figure, the report page and the zip');
     const packFiles = await buildConsultationPack(scenario, result, built, {
+      ...levels,
       outputs: pack,
       crs: job.options.crs as string | undefined,
       contextLayers: job.options.contextLayers as ContextLayer[] | undefined,

@@ -12,7 +12,7 @@ import { canonicalJson, sha256Hex } from '../storage/ids.ts';
 import type { ResultFileStore } from '../storage/resultFiles.ts';
 import { FINAL_STATUSES, type RunError, type RunRecord, type RunStatus, type RunStore } from '../storage/runStore.ts';
 import { NotFoundError, type RevisionWithBody, type ScenarioRecord, type ScenarioStore } from '../storage/scenarioStore.ts';
-import { admitScenarioPack, admitSite, admitStackHeight, admitSweep, largerPacks, type ScenarioPackInput, type SiteOptionsInput, type StackHeightOptionsInput, type SweepOptionsInput } from './analysisAdmission.ts';
+import { admitScenarioPack, admitSite, admitStackHeight, admitSweep, largerPacks, withoutPack, type ScenarioPackInput, type SiteOptionsInput, type StackHeightOptionsInput, type SweepOptionsInput } from './analysisAdmission.ts';
 import { planRun, RunRefusedError } from './admission.ts';
 import type { RunEvent, RunExecutor, RunKind } from './runExecutor.ts';
 
@@ -112,7 +112,7 @@ export class RunManager {
    *   run; 429 too many runs of this client)
    */
   submit(request: SubmitRequest): { run: RunRecord; reused: boolean } {
-    const { scenarios, runs, executor, logger } = this.deps;
+    const { runs, executor, logger } = this.deps;
     const compare = request.kind === 'compare';
     const first = this.scenarioSide(request.scenarioId, request.revision, compare ? 'a' : '');
     const plan = planRun(first.revision.scenario, request.mode, this.limits.maxCellsPerRun, compare ? 'a.' : '');
@@ -164,7 +164,7 @@ export class RunManager {
     const earlier =
       [dedupeKey, ...larger].map((key) => runs.findReusable(key)).find((run) => run !== undefined) ??
       (request.kind === 'scenario' && options.pack === undefined
-        ? runs.findReusableOf(scenario.id, revision.checksum, 'scenario').find((run) => run.options.mode === options.mode)
+        ? runs.findReusableOf(scenario.id, revision.checksum, 'scenario').find((run) => canonicalJson(withoutPack(run.options)) === canonicalJson(options))
         : undefined);
     if (earlier !== undefined) {
       logger.info({ run: earlier.id, status: earlier.status, reused: true }, 'identical submission served from an earlier run');

@@ -174,6 +174,7 @@ export function submitRequestOf(body: unknown, manager: RunManager, client: stri
     case 'scenario': {
       const parsed = parseRequest(runRequestSchema, body);
       const { kind: _kind, scenarioId, revision, mode, ...options } = parsed;
+      checkLevels(options.levels_ug_m3, 'levels_ug_m3');
       return { kind: 'scenario', scenarioId, revision, mode, options, client };
     }
     case 'compare': {

@@ -188,6 +188,8 @@ describe('analysis runs', () => {
     (
       [
     ['unknown scenario (sweep)', { kind: 'sweep', scenarioId: '00000000-0000-4000-8000-000000000000', parameter: 'stackHeight_m', values: [10] }, 404, 'id'],
+    ['unknown scenario (stack-height)', { kind: 'stack-height', scenarioId: '00000000-0000-4000-8000-000000000000', target_ug_m3: 5 }, 404, 'id'],
+    ['unknown scenario (site)', { kind: 'site', scenarioId: '00000000-0000-4000-8000-000000000000' }, 404, 'id'],
     ['unknown kind', { kind: 'forecast', scenarioId: 'x' }, 400, 'kind'],
     ['bad parameter name', { kind: 'sweep', parameter: 'chimneyHeight', values: [10] }, 400, 'parameter'],
     ['empty values', { kind: 'sweep', parameter: 'stackHeight_m', values: [] }, 400, 'values'],

@@ -109,7 +109,7 @@ describe('the app', () => {
     // fields and the mode's choices.
     expect(document.components.schemas.RunRequest.oneOf).toHaveLength(5);
     const runRequest = document.components.schemas.ScenarioRunRequest;
-    expect(Object.keys(runRequest.properties).sort()).toEqual(['contextLayers', 'crs', 'kind', 'mode', 'pack', 'revision', 'scenarioId']);
+    expect(Object.keys(runRequest.properties).sort()).toEqual(['contextLayers', 'crs', 'kind', 'levels_ug_m3', 'mode', 'pack', 'percentOf', 'resolutionCheck', 'revision', 'scenarioId']);
     expect(runRequest.properties.mode.enum).toEqual(['grid', 'gaussian']);
     expect(runRequest.additionalProperties).toBe(false);
     expect(document.components.schemas.Scenario.properties.sources).toBeDefined();

@@ -158,6 +158,19 @@ describe('consultation pack downloads', () => {
     expect(again.body).toMatchObject({ id: fullRun, reused: true });
   });
 
+  it('levels as percentages of a standard (plumeplan run --percent-of) set the footprint; such a run is not answered by one with other levels', async () => {
+    const accepted = await request(server.app).post('/api/runs').send({ scenarioId, mode: 'gaussian', percentOf: 'NO2 1-hour mean', levels_ug_m3: [1, 10] }).expect(202);
+    expect(accepted.body.reused).toBe(false);
+    const run = await finished(accepted.body.id);
+    expect(run.status, JSON.stringify(run.error)).toBe('done');
+    const summary = JSON.parse((await download(accepted.body.id, 'summary.json')).bytes.toString('utf8'));
+    // 1 % and 10 % of the demo's invented 200 ug/m3 one-hour limit
+    expect(summary.footprint.levels_ug_m3).toEqual([2, 20]);
+    expect(summary.footprint.levelsBasis).toContain('NO2 1-hour mean');
+    const unknown = await request(server.app).post('/api/runs').send({ scenarioId, mode: 'gaussian', percentOf: 'PM10 daily mean' }).expect(422);
+    expect(unknown.body.field).toBe('percentOf');
+  });
+
   it('pack "quick" leaves out map.png and report.pdf', async () => {
     const accepted = await request(server.app).post('/api/runs').send({ scenarioId, mode: 'gaussian', pack: 'quick' }).expect(202);
     const run = await finished(accepted.body.id);
@@ -178,6 +191,8 @@ describe('consultation pack downloads', () => {
     ['a CRS without a pack', { crs: 'EPSG:27700' }, 'crs'],
     ['a context layer of non-features', { pack: 'quick', contextLayers: [{ name: 'x', features: [{ type: 'Point', coordinates: [0, 0] }] }] }, 'contextLayers[0].features[0]'],
     ['a context layer without a name', { pack: 'quick', contextLayers: [{ features: [] }] }, 'contextLayers[0].name'],
+    ['levels that do not increase', { levels_ug_m3: [5, 5] }, 'levels_ug_m3[1]'],
+    ['a resolution check that is not a boolean', { resolutionCheck: 'yes' }, 'resolutionCheck'],
   ])('%s is refused (400) naming the field, and the server still serves', async (_what, options, field) => {
     const response = await request(server.app).post('/api/runs').send({ scenarioId, mode: 'gaussian', ...options }).expect(400);
     expect(response.body.field).toBe(field);
