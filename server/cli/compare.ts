@@ -11,6 +11,7 @@ import type { ScenarioRunResult } from '../../solver/drivers/types.ts';
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { comparisonJson, differenceFootprint, type DifferenceCollection } from '../writers/comparison.ts';
 import { buildComparisonReportFiles } from '../writers/comparisonReport.ts';
+import { isFolder, readRunFolder } from '../writers/runFolder.ts';
 import { defaultFootprintLevels } from '../writers/footprint.ts';
 import { formatFootprint, writeResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
@@ -20,7 +21,9 @@ import { checkOutFolder, executeScenario, loadScenarioForCommand, reportFailure,
 
 export const COMPARE_USAGE = `usage: plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
 
-Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
+Compares A and B, each a scenario file (format plumeplan.scenario/1), which is run, or a finished
+run folder (what "plumeplan run" wrote), which is read back without solving again: a path that is
+a folder is taken as a run folder, anything else as a scenario file. Writes into DIR:
   comparison.json     peaks, the change at each receptor both share (a_ug_m3, b_ug_m3,
                       delta_ug_m3, change_pct), the change of each footprint level's area, every
                       screening verdict that changes, notes (resampling when the grids differ)
@@ -28,14 +31,17 @@ Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
   difference-map.svg, difference-map.png   the difference figure: B - A on a diverging scale
   comparison-report.html, comparison-report.pdf   the comparison report (A4): caution, both
                       scenarios, the difference figure, receptor changes, areas and verdicts that change
-  a/, b/              each run's own result folder, as "plumeplan run" writes it
+  a/, b/              each run's own result folder, as "plumeplan run" writes it (scenario files only)
 
 Options:
   -o, --out DIR      folder for the results (required)
-  -m, --mode MODE    grid or gaussian for both runs; default: each scenario's solver.mode
+  -m, --mode MODE    grid or gaussian for the scenario files run; default: each one's solver.mode
   -l, --levels LIST  footprint levels in ug/m3 whose areas are compared (and A's and B's footprints);
                      default: round numbers across the larger run's range
   -h, --help         show this help
+
+A run folder gives its ground field from ground.tif (the pixel at each cell centre of its own grid)
+and its receptor figures and verdicts from summary.json, as rounded there; comparison.json says so.
 
 Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 Results are screening estimates only; see the caution in comparison.json.
@@ -58,7 +64,7 @@ function readCompareArguments(argv: string[]): CompareArguments | 'help' {
   });
   if (options.help === true) return 'help';
   if (positionals.length !== 2) {
-    throw new UsageError(`compare takes two scenario files, A and B; got ${positionals.length}${positionals.length > 0 ? `: ${positionals.join(' ')}` : ''}`);
+    throw new UsageError(`compare takes two scenario files or run folders, A and B; got ${positionals.length}${positionals.length > 0 ? `: ${positionals.join(' ')}` : ''}`);
   }
   if (typeof options.out !== 'string' || options.out === '') throw new UsageError('--out DIR is required: the folder to write the comparison into');
   return {
@@ -91,16 +97,31 @@ export async function compareCommand(argv: string[], io: CommandIO, options: Run
   const progress = createProgressReporter(io.stderr, io.now);
   try {
     if (!(await checkOutFolder(args.outDirectory, io, 'compare'))) return 2;
-    const scenarioA = await loadScenarioForCommand(args.pathA, io, 'compare');
-    if (scenarioA === null) return 2;
-    const scenarioB = await loadScenarioForCommand(args.pathB, io, 'compare');
-    if (scenarioB === null) return 2;
+    // a folder is a finished run, read back; a file is a scenario, checked now and run below
+    const load = async (file: string) => {
+      if (!(await isFolder(file))) return { scenario: await loadScenarioForCommand(file, io, 'compare') };
+      try {
+        return { folder: await readRunFolder(file) };
+      } catch (error) {
+        if (!(error instanceof RangeError)) throw error;
+        io.stderr.write(`plumeplan compare: ${error.message}\n`);
+        return { scenario: null };
+      }
+    };
+    const inputA = await load(args.pathA);
+    if (inputA.scenario === null) return 2;
+    const inputB = await load(args.pathB);
+    if (inputB.scenario === null) return 2;
     const run = (scenario: Scenario, share: number, offset: number, name: string) =>
       executeScenario(scenario, args.mode ?? scenario.solver.mode, (fraction, message) => progress.update(offset + share * fraction, `${name}: ${message}`), options.solve);
-    const resultA = await run(scenarioA, 0.5, 0, 'A');
-    const resultB = await run(scenarioB, 0.5, 0.5, 'B');
+    const side = async (input: typeof inputA, file: string, offset: number, name: string): Promise<ComparisonSide> =>
+      input.folder !== undefined
+        ? { path: file, scenario: input.folder.scenario, result: input.folder.result, readBack: input.folder.notes }
+        : { path: file, scenario: input.scenario!, result: await run(input.scenario!, 0.5, offset, name) };
+    const sideA = await side(inputA, args.pathA, 0, 'A');
+    const sideB = await side(inputB, args.pathB, 0.5, 'B');
     progress.update(1, 'comparing');
-    const written = await writeComparisonFolder(args.outDirectory, { path: args.pathA, scenario: scenarioA, result: resultA }, { path: args.pathB, scenario: scenarioB, result: resultB }, args.levels_ug_m3);
+    const written = await writeComparisonFolder(args.outDirectory, sideA, sideB, args.levels_ug_m3);
     progress.finish();
     io.stdout.write(describeComparison(written.comparison, written.directory, written.files));
     return 0;
@@ -116,6 +137,8 @@ export interface ComparisonSide {
   path: string;
   scenario: Scenario;
   result: ScenarioRunResult;
+  /** set when the side was read back from a run folder (not solved): what that means for its figures */
+  readBack?: string[];
 }
 
 /**
@@ -137,19 +160,21 @@ export async function writeComparisonFolder(
   const levels =
     levels_ug_m3 ?? defaultFootprintLevels(peakOf(a.result) >= peakOf(b.result) ? a.result.footprint_ug_m3 : b.result.footprint_ug_m3);
   const comparison = compareRuns(side(a), side(b), { levels_ug_m3: levels });
+  for (const [name, s] of [['A', a], ['B', b]] as const) for (const note of s.readBack ?? []) comparison.notes.push(`${name} ${note}`);
   const difference = differenceFootprint(comparison);
   const json = comparisonJson(
     comparison,
     levelsChosen === 'given' ? 'given (--levels)' : 'round numbers (1-2-5 series) across the range of the run with the larger peak',
   );
   await mkdir(directory, { recursive: true });
-  await writeResultFolder(path.join(directory, 'a'), a.scenario, a.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
-  await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
+  // a run folder read back has its own folder already
+  const own = [a, b].flatMap((s, k) => (s.readBack === undefined ? [[s, k === 0 ? 'a' : 'b'] as const] : []));
+  for (const [s, name] of own) await writeResultFolder(path.join(directory, name), s.scenario, s.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
   await writeFile(path.join(directory, 'comparison.json'), `${JSON.stringify(json, null, 2)}\n`, 'utf8');
   await writeFile(path.join(directory, 'difference.geojson'), formatFootprint(difference), 'utf8');
   const reportFiles = await buildComparisonReportFiles({ a, b, comparison, difference, levelsBasis: (json.levels as { basis: string }).basis });
   for (const [name, data] of reportFiles) await writeFile(path.join(directory, name), data);
-  return { comparison, directory, files: ['comparison.json', 'difference.geojson', ...reportFiles.map(([name]) => name), 'a/', 'b/'], difference };
+  return { comparison, directory, files: ['comparison.json', 'difference.geojson', ...reportFiles.map(([name]) => name), ...own.map(([, name]) => `${name}/`)], difference };
 }
 
 function side(s: ComparisonSide): ComparedRun {
