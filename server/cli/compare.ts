@@ -17,7 +17,7 @@ import { formatFootprint, writeResultFolder } from '../writers/writeResultFolder
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
-import { checkOutFolder, executeScenario, loadScenarioForCommand, reportFailure, type RunCommandOptions } from './run.ts';
+import { checkOutFolder, commandLine, executeScenario, loadScenarioForCommand, reportFailure, type RunCommandOptions } from './run.ts';
 
 export const COMPARE_USAGE = `usage: plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
 
@@ -121,7 +121,7 @@ export async function compareCommand(argv: string[], io: CommandIO, options: Run
     const sideA = await side(inputA, args.pathA, 0, 'A');
     const sideB = await side(inputB, args.pathB, 0.5, 'B');
     progress.update(1, 'comparing');
-    const written = await writeComparisonFolder(args.outDirectory, sideA, sideB, args.levels_ug_m3);
+    const written = await writeComparisonFolder(args.outDirectory, sideA, sideB, args.levels_ug_m3, commandLine(argv).replace(/^plumeplan run/, 'plumeplan compare'));
     progress.finish();
     io.stdout.write(describeComparison(written.comparison, written.directory, written.files));
     return 0;
@@ -148,6 +148,7 @@ export interface ComparisonSide {
  * @param a the reference side
  * @param b the other side
  * @param levels_ug_m3 levels whose areas are compared; default round numbers across the larger peak
+ * @param command the command as typed, for the report's reproducibility block
  * @returns the comparison, the folder and the files written
  */
 export async function writeComparisonFolder(
@@ -155,6 +156,7 @@ export async function writeComparisonFolder(
   a: ComparisonSide,
   b: ComparisonSide,
   levels_ug_m3?: number[],
+  command?: string,
 ): Promise<{ comparison: Comparison; directory: string; files: string[]; difference: DifferenceCollection }> {
   const levelsChosen = levels_ug_m3 === undefined ? 'default' : 'given';
   const levels =
@@ -172,7 +174,7 @@ export async function writeComparisonFolder(
   for (const [s, name] of own) await writeResultFolder(path.join(directory, name), s.scenario, s.result, { levels_ug_m3: levels.length > 0 ? levels : undefined });
   await writeFile(path.join(directory, 'comparison.json'), `${JSON.stringify(json, null, 2)}\n`, 'utf8');
   await writeFile(path.join(directory, 'difference.geojson'), formatFootprint(difference), 'utf8');
-  const reportFiles = await buildComparisonReportFiles({ a, b, comparison, difference, levelsBasis: (json.levels as { basis: string }).basis });
+  const reportFiles = await buildComparisonReportFiles({ a, b, comparison, difference, levelsBasis: (json.levels as { basis: string }).basis, command });
   for (const [name, data] of reportFiles) await writeFile(path.join(directory, name), data);
   return { comparison, directory, files: ['comparison.json', 'difference.geojson', ...reportFiles.map(([name]) => name), ...own.map(([, name]) => `${name}/`)], difference };
 }
