@@ -20,6 +20,8 @@ export interface ComparisonSide {
   source: string;
   scenario: Scenario;
   result: ScenarioRunResult;
+  /** set when the side was read back from a run folder (not solved): what that means for its figures */
+  readBack?: string[];
 }
 
 export interface BuiltComparison {
@@ -42,6 +44,7 @@ export function buildComparisonFiles(a: ComparisonSide, b: ComparisonSide, level
   const levels =
     levels_ug_m3 ?? defaultFootprintLevels(peakOf(a.result) >= peakOf(b.result) ? a.result.footprint_ug_m3 : b.result.footprint_ug_m3);
   const comparison = compareRuns(side(a), side(b), { levels_ug_m3: levels });
+  for (const [name, compared] of [['A', a], ['B', b]] as const) for (const note of compared.readBack ?? []) comparison.notes.push(`${name} ${note}`);
   const difference = differenceFootprint(comparison);
   const levelsBasis =
     levels_ug_m3 !== undefined ? `given (${levelsOrigin})` : 'round numbers (1-2-5 series) across the range of the run with the larger peak';

@@ -11,17 +11,20 @@ import { buildComparisonFiles, type ComparisonSide } from '../analyses/compariso
 import { SCREENING_CAUTION } from '../writers/caution.ts';
 import { comparisonJson, type DifferenceCollection } from '../writers/comparison.ts';
 import { buildComparisonReportFiles } from '../writers/comparisonReport.ts';
+import { isFolder, readRunFolder } from '../writers/runFolder.ts';
 import { writeResultFolder } from '../writers/writeResultFolder.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
-import { checkOutFolder, executeScenario, loadScenarioForCommand, reportFailure, type RunCommandOptions } from './run.ts';
+import { checkOutFolder, commandLine, executeScenario, loadScenarioForCommand, reportFailure, type RunCommandOptions } from './run.ts';
 
 export type { ComparisonSide };
 
 export const COMPARE_USAGE = `usage: plumeplan compare A B --out DIR [--mode grid|gaussian] [--levels L1,L2,...]
 
-Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
+Compares A and B, each a scenario file (format plumeplan.scenario/1), which is run, or a finished
+run folder (what "plumeplan run" wrote), which is read back without solving again: a path that is
+a folder is taken as a run folder, anything else as a scenario file. Writes into DIR:
   comparison.json     peaks, the change at each receptor both share (a_ug_m3, b_ug_m3,
                       delta_ug_m3, change_pct), the change of each footprint level's area, every
                       screening verdict that changes, notes (resampling when the grids differ)
@@ -29,14 +32,17 @@ Runs scenario files A and B (format plumeplan.scenario/1) and writes into DIR:
   difference-map.svg, difference-map.png   the difference figure: B - A on a diverging scale
   comparison-report.html, comparison-report.pdf   the comparison report (A4): caution, both
                       scenarios, the difference figure, receptor changes, areas and verdicts that change
-  a/, b/              each run's own result folder, as "plumeplan run" writes it
+  a/, b/              each run's own result folder, as "plumeplan run" writes it (scenario files only)
 
 Options:
   -o, --out DIR      folder for the results (required)
-  -m, --mode MODE    grid or gaussian for both runs; default: each scenario's solver.mode
+  -m, --mode MODE    grid or gaussian for the scenario files run; default: each one's solver.mode
   -l, --levels LIST  footprint levels in ug/m3 whose areas are compared (and A's and B's footprints);
                      default: round numbers across the larger run's range
   -h, --help         show this help
+
+A run folder gives its ground field from ground.tif (the pixel at each cell centre of its own grid)
+and its receptor figures and verdicts from summary.json, as rounded there; comparison.json says so.
 
 Exit codes: 0 done, 2 invalid input, 1 internal failure, 130 interrupted.
 Results are screening estimates only; see the caution in comparison.json.
@@ -59,7 +65,7 @@ function readCompareArguments(argv: string[]): CompareArguments | 'help' {
   });
   if (options.help === true) return 'help';
   if (positionals.length !== 2) {
-    throw new UsageError(`compare takes two scenario files, A and B; got ${positionals.length}${positionals.length > 0 ? `: ${positionals.join(' ')}` : ''}`);
+    throw new UsageError(`compare takes two scenario files or run folders, A and B; got ${positionals.length}${positionals.length > 0 ? `: ${positionals.join(' ')}` : ''}`);
   }
   if (typeof options.out !== 'string' || options.out === '') throw new UsageError('--out DIR is required: the folder to write the comparison into');
   return {
@@ -92,16 +98,31 @@ export async function compareCommand(argv: string[], io: CommandIO, options: Run
   const progress = createProgressReporter(io.stderr, io.now);
   try {
     if (!(await checkOutFolder(args.outDirectory, io, 'compare'))) return 2;
-    const scenarioA = await loadScenarioForCommand(args.pathA, io, 'compare');
-    if (scenarioA === null) return 2;
-    const scenarioB = await loadScenarioForCommand(args.pathB, io, 'compare');
-    if (scenarioB === null) return 2;
+    // a folder is a finished run, read back; a file is a scenario, checked now and run below
+    const load = async (file: string) => {
+      if (!(await isFolder(file))) return { scenario: await loadScenarioForCommand(file, io, 'compare') };
+      try {
+        return { folder: await readRunFolder(file) };
+      } catch (error) {
+        if (!(error instanceof RangeError)) throw error;
+        io.stderr.write(`plumeplan compare: ${error.message}\n`);
+        return { scenario: null };
+      }
+    };
+    const inputA = await load(args.pathA);
+    if (inputA.scenario === null) return 2;
+    const inputB = await load(args.pathB);
+    if (inputB.scenario === null) return 2;
     const run = (scenario: Scenario, share: number, offset: number, name: string) =>
       executeScenario(scenario, args.mode ?? scenario.solver.mode, (fraction, message) => progress.update(offset + share * fraction, `${name}: ${message}`), options.solve);
-    const resultA = await run(scenarioA, 0.5, 0, 'A');
-    const resultB = await run(scenarioB, 0.5, 0.5, 'B');
+    const side = async (input: typeof inputA, file: string, offset: number, name: string): Promise<ComparisonSide> =>
+      input.folder !== undefined
+        ? { source: file, scenario: input.folder.scenario, result: input.folder.result, readBack: input.folder.notes }
+        : { source: file, scenario: input.scenario!, result: await run(input.scenario!, 0.5, offset, name) };
+    const sideA = await side(inputA, args.pathA, 0, 'A');
+    const sideB = await side(inputB, args.pathB, 0.5, 'B');
     progress.update(1, 'comparing');
-    const written = await writeComparisonFolder(args.outDirectory, { source: args.pathA, scenario: scenarioA, result: resultA }, { source: args.pathB, scenario: scenarioB, result: resultB }, args.levels_ug_m3);
+    const written = await writeComparisonFolder(args.outDirectory, sideA, sideB, args.levels_ug_m3, commandLine(argv).replace(/^plumeplan run/, 'plumeplan compare'));
     progress.finish();
     io.stdout.write(describeComparison(written.comparison, written.directory, written.files));
     return 0;
@@ -118,6 +139,7 @@ export async function compareCommand(argv: string[], io: CommandIO, options: Run
  * @param a the reference side (its source: the scenario file)
  * @param b the other side
  * @param levels_ug_m3 levels whose areas are compared; default round numbers across the larger peak
+ * @param command the command as typed, for the report's reproducibility block
  * @returns the comparison, the folder and the files written
  */
 export async function writeComparisonFolder(
@@ -125,11 +147,13 @@ export async function writeComparisonFolder(
   a: ComparisonSide,
   b: ComparisonSide,
   levels_ug_m3?: number[],
+  command?: string,
 ): Promise<{ comparison: Comparison; directory: string; files: string[]; difference: DifferenceCollection }> {
   const built = buildComparisonFiles(a, b, levels_ug_m3);
   await mkdir(directory, { recursive: true });
-  await writeResultFolder(path.join(directory, 'a'), a.scenario, a.result, built.sideOptions);
-  await writeResultFolder(path.join(directory, 'b'), b.scenario, b.result, built.sideOptions);
+  // a run folder read back has its own folder already
+  const own = [a, b].flatMap((side, k) => (side.readBack === undefined ? [[side, k === 0 ? 'a' : 'b'] as const] : []));
+  for (const [side, name] of own) await writeResultFolder(path.join(directory, name), side.scenario, side.result, built.sideOptions);
   for (const [name, text] of built.files) await writeFile(path.join(directory, name), text, 'utf8');
   const reportFiles = await buildComparisonReportFiles({
     a: { path: a.source, scenario: a.scenario, result: a.result },
@@ -137,9 +161,10 @@ export async function writeComparisonFolder(
     comparison: built.comparison,
     difference: built.difference,
     levelsBasis: built.levelsBasis,
+    command,
   });
   for (const [name, data] of reportFiles) await writeFile(path.join(directory, name), data);
-  const names = [...built.files.map(([name]) => name), ...reportFiles.map(([name]) => name), 'a/', 'b/'];
+  const names = [...built.files.map(([name]) => name), ...reportFiles.map(([name]) => name), ...own.map(([, name]) => `${name}/`)];
   return { comparison: built.comparison, directory, files: names, difference: built.difference };
 }
 
