@@ -17,6 +17,7 @@ import { escapeHtml } from '../map/mapControls.ts';
 import type { ScenarioDocument } from '../state/scenarioDocument.ts';
 import { ApiClient, ApiError, FINAL_RUN_STATUSES, type RunRecord, type RunUpdate } from '../api/client.ts';
 import { renderLegend, type LegendContent } from './legend.ts';
+import { downloadsHtml } from './downloads.ts';
 import type { ViewSettings } from './viewPanel.ts';
 
 export interface ResultsPanelHooks {
@@ -39,15 +40,6 @@ interface RunSummary {
   notes?: string[];
   weatherKind?: string;
 }
-
-/** Labels of the result files the server offers. */
-const FILE_LABELS: Record<string, string> = {
-  'summary.json': 'Summary (JSON)',
-  'receptors.csv': 'Receptor figures (CSV)',
-  'footprint.geojson': 'Footprint isopleths (GeoJSON)',
-  'windrose.svg': 'Wind rose (SVG)',
-  'ground-field.bin': 'Ground field (binary float32)',
-};
 
 export class ResultsPanel {
   private readonly root: HTMLElement;
@@ -83,6 +75,11 @@ export class ResultsPanel {
           <button type="button" data-action="cancel" data-testid="cancel-button" disabled>Cancel</button>
           <button type="button" data-action="show-preview" disabled>Show preview</button>
         </div>
+        <label class="inline-field">Files <select data-testid="pack-choice" aria-label="Files the run makes">
+          <option value="none">core results (quickest)</option>
+          <option value="quick">with the consultation pack: report page, GeoTIFF, map, zip</option>
+          <option value="full">with the full pack: also the report PDF and map PNG (slowest)</option>
+        </select></label>
         <div class="progress-wrap">
           <progress max="1" value="0" data-testid="run-progress" aria-label="Run progress"></progress>
           <div class="run-status" data-testid="run-status" role="status" aria-live="polite">No run yet.</div>
@@ -315,7 +312,8 @@ export class ResultsPanel {
     if (saved === null) return;
     this.stopFollowing?.();
     try {
-      const accepted = await this.api.startRun(saved.id, saved.revision);
+      const pack = this.q<HTMLSelectElement>('[data-testid="pack-choice"]').value as 'none' | 'quick' | 'full';
+      const accepted = await this.api.startRun(saved.id, saved.revision, undefined, pack);
       this.setRunning(true);
       this.setRunStatus(accepted.reused ? 'Same scenario run before: using its results.' : 'Queued…');
       this.stopFollowing = this.api.followRun(accepted.id, (update) => void this.onUpdate(update));
@@ -407,13 +405,7 @@ export class ResultsPanel {
   }
 
   private renderDownloads(run: RunRecord): void {
-    const element = this.q('[data-testid="downloads"]');
-    element.innerHTML =
-      '<ul class="files">' +
-      run.results
-        .map((file) => `<li><a href="${escapeHtml(file.url)}" download="${escapeHtml(file.name)}" data-testid="download-${escapeHtml(file.name)}">${escapeHtml(FILE_LABELS[file.name] ?? file.name)}</a> <span class="muted">${formatBytes(file.bytes)}</span></li>`)
-        .join('') +
-      '</ul><p class="hint">Each file carries the screening caution (the CSV travels with the summary\'s).</p>';
+    this.q('[data-testid="downloads"]').innerHTML = downloadsHtml(run);
   }
 
   /** Run (or reuse the run of) another saved scenario and compare it with this scenario's run. */
@@ -505,8 +497,4 @@ function formatDuration(seconds: number): string {
   return `${Math.round(seconds / 60)} min`;
 }
 
-function formatBytes(bytes: number): string {
-  if (bytes < 1024) return `${bytes} B`;
-  if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} kB`;
-  return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
-}
+

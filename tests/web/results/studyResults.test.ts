@@ -1,0 +1,99 @@
+/**
+ * Sweep and stack-height results as the page shows them, from files shaped as server/writers/sweepFiles.ts
+ * writes them (invented figures): the table lists every member, the chart's points sit where the axes
+ * put them, the answer and the caution are shown, and the downloads list the pack first.
+ */
+import { describe, expect, it } from 'vitest';
+import { SCREENING_CAUTION } from '../../../server/writers/caution.ts';
+import { downloadsHtml } from '../../../web/results/downloads.ts';
+import { lineChartSvg, niceTicks } from '../../../web/results/lineChart.ts';
+import { stackHeightResultHtml, sweepResultHtml, type StackHeightFile, type SweepFile } from '../../../web/results/studyResults.ts';
+
+const sweep: SweepFile = {
+  format: 'plumeplan.sweep/1',
+  parameter: 'stackHeight_m',
+  unit: 'm',
+  description: "a point source's stack height",
+  sourceId: 'boiler-stack',
+  statistic: 'concentration',
+  members: [20, 40, 60].map((value, n) => ({
+    value,
+    groundMax_ug_m3: 30 / (n + 1),
+    receptors: [{ id: 'a', pc_ug_m3: 12 / (n + 1) }],
+    standards: [{ name: 'NO2 1-hour', max_ug_m3: 10 / (n + 1) }],
+  })),
+  notes: ['members share one grid'],
+  caution: SCREENING_CAUTION,
+};
+
+function text(html: string): string {
+  return html.replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ').trim();
+}
+
+describe('study results', () => {
+  it('tables every sweep member with the ground maximum, each receptor and each standard', () => {
+    const html = sweepResultHtml(sweep, new Map([['a', 'Ashby Lane houses']]));
+    const flat = text(html);
+    expect(flat).toContain('stackHeight_m [m] ground max. Ashby Lane houses NO2 1-hour max.');
+    expect(flat).toContain('40 15 6 5');
+    expect(flat).toContain('members share one grid');
+    expect(html).toContain(SCREENING_CAUTION.slice(0, 40));
+    expect(html).toContain('<svg');
+  });
+
+  it('states the stack height found, the target and its basis, with the curve and the caution', () => {
+    const result: StackHeightFile = {
+      format: 'plumeplan.stackHeight/1',
+      found: true,
+      height_m: 47,
+      bracket_m: [46, 47],
+      tolerance_m: 1,
+      target_ug_m3: 20,
+      targetBasis: '10 % of NO2 1-hour (200 ug/m3)',
+      sourceId: 'boiler-stack',
+      at: 'ground',
+      standard: 'NO2 1-hour',
+      message: 'found by bisection',
+      monotone: true,
+      curve: [
+        { height_m: 10, pc_ug_m3: 60, meetsTarget: false },
+        { height_m: 47, pc_ug_m3: 19.5, meetsTarget: true },
+      ],
+      downwash: null,
+      caution: SCREENING_CAUTION,
+    };
+    const flat = text(stackHeightResultHtml(result));
+    expect(flat).toContain('Lowest height meeting the target: 47 m (target 20 µg/m³, 10 % of NO2 1-hour (200 ug/m3); within 1 m)');
+    expect(flat).toContain('10 60 no 47 19.5 yes');
+    expect(flat).toContain(SCREENING_CAUTION.slice(0, 40));
+    expect(text(stackHeightResultHtml({ ...result, found: false, height_m: null }))).toContain('no height in the range meets the target');
+  });
+
+  it('places chart points on the axes it draws (linear in x and y), with the target line', () => {
+    const svg = lineChartSvg([{ name: 'PC', points: [{ x: 0, y: 0 }, { x: 10, y: 10 }] }], { title: 't', xLabel: 'x', yLabel: 'y', width: 300, height: 200, reference: { y: 5, label: 'target' } });
+    const circles = [...svg.matchAll(/<circle cx="([\d.]+)" cy="([\d.]+)"/g)].map((m) => [Number(m[1]), Number(m[2])]);
+    expect(circles).toHaveLength(2);
+    // plot from x = 46 to 290 px; y from 0 at the bottom to 10.5 (5 % headroom) at the top
+    expect(circles[0][0]).toBeCloseTo(46, 0);
+    expect(circles[1][0]).toBeCloseTo(290, 0);
+    const bottom = circles[0][1];
+    const topOfTen = circles[1][1];
+    const target = Number(/<line x1="46" x2="290" y1="([\d.]+)" y2="[\d.]+" stroke="#9b2c2c"/.exec(svg)?.[1]);
+    // the target at 5 sits halfway between 0 and 10
+    expect(target).toBeCloseTo((bottom + topOfTen) / 2, 0);
+    expect(svg).toContain('<title');
+  });
+
+  it('gives round 1-2-5 ticks', () => {
+    expect(niceTicks(0, 16.9)).toEqual([0, 5, 10, 15]);
+    expect(niceTicks(10, 120)).toEqual([20, 40, 60, 80, 100, 120]);
+  });
+
+  it('lists the consultation pack first and says when a run has none', () => {
+    const file = (name: string) => ({ name, contentType: '', bytes: 2048, sha256: '', url: `/api/runs/x/results/${name}` });
+    const withPack = downloadsHtml({ results: [file('summary.json'), file('plumeplan-run.zip'), file('report.pdf'), file('ground.tif'), file('map.png')] });
+    const order = [...withPack.matchAll(/data-testid="download-([^"]+)"/g)].map((m) => m[1]);
+    expect(order).toEqual(['report.pdf', 'ground.tif', 'map.png', 'plumeplan-run.zip', 'summary.json']);
+    expect(text(downloadsHtml({ results: [file('summary.json')] }))).toContain('comes with a run that asks for it');
+  });
+});

@@ -1,0 +1,108 @@
+/**
+ * Sweep and stack-height results as the page shows them: a table and a chart from the run's JSON
+ * (`sweep.json`, format plumeplan.sweep/1; `stack-height.json`, plumeplan.stackHeight/1, written by
+ * server/writers/sweepFiles.ts), with the caution the file carries. Pure: no DOM.
+ */
+import { formatConcentration } from '../colour/legendLevels.ts';
+import { escapeHtml } from '../map/escapeHtml.ts';
+import { lineChartSvg, type LineSeries } from './lineChart.ts';
+
+export interface SweepFile {
+  format: string;
+  parameter: string;
+  unit: string;
+  description: string;
+  sourceId: string | null;
+  statistic: string;
+  members: {
+    value: number;
+    groundMax_ug_m3: number;
+    receptors: { id: string; pc_ug_m3: number }[];
+    standards: { name: string; max_ug_m3: number }[];
+  }[];
+  notes: string[];
+  caution: string;
+}
+
+export interface StackHeightFile {
+  format: string;
+  found: boolean;
+  height_m: number | null;
+  bracket_m: [number, number] | null;
+  tolerance_m: number;
+  target_ug_m3: number;
+  targetBasis: string;
+  sourceId: string;
+  at: 'ground' | string[];
+  standard: string | null;
+  message: string;
+  monotone: boolean;
+  curve: { height_m: number; pc_ug_m3: number; meetsTarget: boolean }[];
+  downwash: { flagged: boolean; message: string } | null;
+  caution: string;
+}
+
+/** Most receptor lines a chart draws (beyond them the table still lists every receptor). */
+const MAX_CHART_RECEPTORS = 4;
+
+/** The sweep's table and chart. */
+export function sweepResultHtml(sweep: SweepFile, receptorNames: ReadonlyMap<string, string>): string {
+  const name = (id: string) => receptorNames.get(id) ?? id;
+  const receptorIds = sweep.members[0]?.receptors.map((r) => r.id) ?? [];
+  const standardNames = sweep.members[0]?.standards.map((s) => s.name) ?? [];
+  const xLabel = `${sweep.description} [${sweep.unit}]`;
+  const series: LineSeries[] = [
+    { name: 'highest on the ground', points: sweep.members.map((m) => ({ x: m.value, y: m.groundMax_ug_m3 })) },
+    ...receptorIds.slice(0, MAX_CHART_RECEPTORS).map((id, r) => ({ name: name(id), points: sweep.members.map((m) => ({ x: m.value, y: m.receptors[r]?.pc_ug_m3 ?? 0 })) })),
+  ];
+  const chart = lineChartSvg(series, { title: `Process contribution against ${sweep.description}`, xLabel, yLabel: 'PC [µg/m³]' });
+  const table =
+    `<table class="results study-table" data-testid="sweep-table"><caption>${escapeHtml(sweep.statistic)} [µg/m³] for each ${escapeHtml(sweep.parameter)}${sweep.sourceId ? ` of ${escapeHtml(sweep.sourceId)}` : ''}</caption>` +
+    `<thead><tr><th scope="col">${escapeHtml(sweep.parameter)} [${escapeHtml(sweep.unit)}]</th><th scope="col">ground max.</th>` +
+    receptorIds.map((id) => `<th scope="col">${escapeHtml(name(id))}</th>`).join('') +
+    standardNames.map((s) => `<th scope="col">${escapeHtml(s)} max.</th>`).join('') +
+    '</tr></thead><tbody>' +
+    sweep.members
+      .map(
+        (m) =>
+          `<tr><th scope="row">${m.value}</th><td>${formatConcentration(m.groundMax_ug_m3)}</td>` +
+          m.receptors.map((r) => `<td>${formatConcentration(r.pc_ug_m3)}</td>`).join('') +
+          m.standards.map((s) => `<td>${formatConcentration(s.max_ug_m3)}</td>`).join('') +
+          '</tr>',
+      )
+      .join('') +
+    '</tbody></table>';
+  return (
+    `<div class="chart-box">${chart}</div><div class="table-scroll">${table}</div>` +
+    (sweep.notes.length > 0 ? `<ul class="notes">${sweep.notes.map((note) => `<li>${escapeHtml(note)}</li>`).join('')}</ul>` : '') +
+    `<p class="caution-inline" data-testid="study-caution">${escapeHtml(sweep.caution)}</p>`
+  );
+}
+
+/** The stack-height answer, its curve as a table and a chart with the target and the answer. */
+export function stackHeightResultHtml(result: StackHeightFile): string {
+  const answer = result.found && result.height_m !== null ? `${result.height_m} m` : 'no height in the range meets the target';
+  const chart = lineChartSvg([{ name: `highest PC ${result.at === 'ground' ? 'on the ground' : 'at the receptors'}`, points: result.curve.map((p) => ({ x: p.height_m, y: p.pc_ug_m3 })) }], {
+    title: `Highest process contribution against the height of ${result.sourceId}`,
+    xLabel: `height of ${result.sourceId} [m]`,
+    yLabel: 'PC [µg/m³]',
+    reference: { y: result.target_ug_m3, label: `target ${formatConcentration(result.target_ug_m3)}` },
+    marker: result.found && result.height_m !== null ? { x: result.height_m, label: `${result.height_m} m` } : undefined,
+  });
+  const table =
+    '<table class="results study-table" data-testid="stack-height-table"><caption>Every height run</caption>' +
+    '<thead><tr><th scope="col">height [m]</th><th scope="col">highest PC [µg/m³]</th><th scope="col">meets the target</th></tr></thead><tbody>' +
+    [...result.curve]
+      .sort((a, b) => a.height_m - b.height_m)
+      .map((p) => `<tr><th scope="row">${p.height_m}</th><td>${formatConcentration(p.pc_ug_m3)}</td><td>${p.meetsTarget ? 'yes' : 'no'}</td></tr>`)
+      .join('') +
+    '</tbody></table>';
+  return (
+    `<p class="study-answer" data-testid="stack-height-answer"><b>Lowest height meeting the target: ${escapeHtml(answer)}</b> ` +
+    `(target ${formatConcentration(result.target_ug_m3)} µg/m³, ${escapeHtml(result.targetBasis)}; within ${result.tolerance_m} m).</p>` +
+    `<p class="hint">${escapeHtml(result.message)}${result.monotone ? '' : ' The curve is not monotone: check the heights above the answer.'}</p>` +
+    (result.downwash?.flagged ? `<p class="problem">${escapeHtml(result.downwash.message)}</p>` : '') +
+    `<div class="chart-box">${chart}</div><div class="table-scroll">${table}</div>` +
+    `<p class="caution-inline" data-testid="study-caution">${escapeHtml(result.caution)}</p>`
+  );
+}
