@@ -8,7 +8,7 @@ import { assessmentPlan } from '../../solver/assessment/standards.ts';
 import { ApiClient, FINAL_RUN_STATUSES, type RunRecord } from '../api/client.ts';
 import { escapeHtml } from '../map/escapeHtml.ts';
 import type { ScenarioDocument } from '../state/scenarioDocument.ts';
-import { stackHeightResultHtml, sweepResultHtml, type StackHeightFile, type SweepFile } from './studyResults.ts';
+import { sitingResultHtml, stackHeightResultHtml, sweepResultHtml, type SitingFile, type StackHeightFile, type SweepFile } from './studyResults.ts';
 import { downloadsHtml } from './downloads.ts';
 
 type Obj = Record<string, unknown>;
@@ -69,6 +69,16 @@ export class StudiesPanel {
         <button type="button" class="primary" data-action="stack-height" data-testid="stack-height-button">Find the height</button>
         <div class="study-status" role="status" aria-live="polite" data-testid="stack-height-status"></div>
         <div class="study-result" data-testid="stack-height-result"></div>
+      </fieldset>
+      <fieldset class="group"><legend>Where on the site</legend>
+        <p class="explain">Tries the stack at every point of the site (the scenario's site boundary, on a lattice) and ranks the positions by the highest process contribution at the receptors. Steady weather or a wind rose.</p>
+        <div class="field"><label for="site-stack">Stack</label><select id="site-stack"></select></div>
+        <div class="field"><label for="site-spacing">Lattice spacing <span class="unit">[m]</span></label><input id="site-spacing" type="number" min="1" step="any" placeholder="the grid's cell size" />
+          <div class="hint">empty = the grid's cell size</div></div>
+        <div class="field"><label for="site-mode">Solver</label><select id="site-mode"><option value="gaussian">Gaussian plume (quick)</option><option value="grid">Grid</option></select></div>
+        <button type="button" class="primary" data-action="site" data-testid="site-button">Rank the positions</button>
+        <div class="study-status" role="status" aria-live="polite" data-testid="site-status"></div>
+        <div class="study-result" data-testid="site-result"></div>
       </fieldset>`;
     const parameter = this.q<HTMLSelectElement>('#sweep-parameter');
     const values = this.q<HTMLInputElement>('#sweep-values');
@@ -84,6 +94,7 @@ export class StudiesPanel {
     });
     this.q('[data-action="sweep"]').addEventListener('click', () => void this.runSweep());
     this.q('[data-action="stack-height"]').addEventListener('click', () => void this.runStackHeight());
+    this.q('[data-action="site"]').addEventListener('click', () => void this.runSiting());
     this.refreshChoices();
   }
 
@@ -103,6 +114,7 @@ export class StudiesPanel {
     const options = (list: Obj[]) => list.map((s) => `<option value="${escapeHtml(String(s.id))}">${escapeHtml(String(s.name ?? s.id))}</option>`).join('');
     fill(this.q<HTMLSelectElement>('#sweep-source'), options(sources));
     fill(this.q<HTMLSelectElement>('#height-source'), options(sources.filter((s) => s.kind === 'point')));
+    fill(this.q<HTMLSelectElement>('#site-stack'), options(sources.filter((s) => s.kind === 'point')));
     const outcome = this.doc.validation;
     let standards: string[] = [];
     if (outcome.ok && outcome.scenario.assessment) {
@@ -194,5 +206,17 @@ export class StudiesPanel {
     if (!file) return;
     const result = await this.api.resultJson<StackHeightFile>(file);
     this.q('[data-testid="stack-height-result"]').innerHTML = stackHeightResultHtml(result) + downloadsHtml(run);
+  }
+
+  private async runSiting(): Promise<void> {
+    const body: Obj = { kind: 'site', stackId: this.q<HTMLSelectElement>('#site-stack').value, mode: this.q<HTMLSelectElement>('#site-mode').value };
+    const spacing = this.q<HTMLInputElement>('#site-spacing').value.trim();
+    if (spacing !== '') body.spacing_m = Number(spacing);
+    const run = await this.runStudy(body, '[data-testid="site-status"]', this.q<HTMLButtonElement>('[data-action="site"]'));
+    if (run === null) return;
+    const file = run.results.find((f) => f.name === 'siting.json');
+    if (!file) return;
+    const siting = await this.api.resultJson<SitingFile>(file);
+    this.q('[data-testid="site-result"]').innerHTML = sitingResultHtml(siting, this.receptorNames()) + downloadsHtml(run);
   }
 }

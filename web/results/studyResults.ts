@@ -73,7 +73,7 @@ export function sweepResultHtml(sweep: SweepFile, receptorNames: ReadonlyMap<str
       .join('') +
     '</tbody></table>';
   return (
-    `<div class="chart-box">${chart}</div><div class="table-scroll">${table}</div>` +
+    `<div class="chart-box">${chart}</div><div class="table-scroll" tabindex="0" role="region" aria-label="sweep figures (scrolls sideways)">${table}</div>` +
     (sweep.notes.length > 0 ? `<ul class="notes">${sweep.notes.map((note) => `<li>${escapeHtml(note)}</li>`).join('')}</ul>` : '') +
     `<p class="caution-inline" data-testid="study-caution">${escapeHtml(sweep.caution)}</p>`
   );
@@ -102,7 +102,58 @@ export function stackHeightResultHtml(result: StackHeightFile): string {
     `(target ${formatConcentration(result.target_ug_m3)} µg/m³, ${escapeHtml(result.targetBasis)}; within ${result.tolerance_m} m).</p>` +
     `<p class="hint">${escapeHtml(result.message)}${result.monotone ? '' : ' The curve is not monotone: check the heights above the answer.'}</p>` +
     (result.downwash?.flagged ? `<p class="problem">${escapeHtml(result.downwash.message)}</p>` : '') +
-    `<div class="chart-box">${chart}</div><div class="table-scroll">${table}</div>` +
+    `<div class="chart-box">${chart}</div><div class="table-scroll" tabindex="0" role="region" aria-label="height curve (scrolls sideways)">${table}</div>` +
     `<p class="caution-inline" data-testid="study-caution">${escapeHtml(result.caution)}</p>`
+  );
+}
+
+export interface SitingFile {
+  format: string;
+  caution: string;
+  statistic: string;
+  map: { meaning: string };
+  stack: { id: string };
+  standard: { name: string; limit_ug_m3: number } | string | null;
+  best: { id?: string; x_m: number; y_m: number; lon: number; lat: number; combined_ug_m3: number };
+  candidates: {
+    rank: number;
+    id: string;
+    x_m: number;
+    y_m: number;
+    combined_ug_m3: number;
+    highestPc_ug_m3: number;
+    highestReceptor: string;
+    percentOfStandard: number | null;
+    verdict: string | null;
+  }[];
+}
+
+/** Most candidates the page lists (candidates.csv holds them all). */
+const MAX_LISTED_CANDIDATES = 12;
+
+/** The siting answer: the best position and the ranked candidates. */
+export function sitingResultHtml(siting: SitingFile, receptorNames: ReadonlyMap<string, string>): string {
+  const listed = siting.candidates.slice(0, MAX_LISTED_CANDIDATES);
+  const standardName = typeof siting.standard === 'string' ? siting.standard : (siting.standard?.name ?? null);
+  return (
+    `<p class="study-answer" data-testid="siting-answer"><b>Best position for ${escapeHtml(siting.stack.id)}: ${Math.round(siting.best.x_m)} m east, ${Math.round(siting.best.y_m)} m north of the site</b> ` +
+    `(lon ${siting.best.lon}, lat ${siting.best.lat}; ${formatConcentration(siting.best.combined_ug_m3)} µg/m³).</p>` +
+    `<p class="hint">${escapeHtml(siting.map.meaning)}.</p>` +
+    '<div class="table-scroll" tabindex="0" role="region" aria-label="candidate positions, scrolls sideways"><table class="results study-table" data-testid="siting-table">' +
+    `<caption>The ${listed.length} best of ${siting.candidates.length} candidate positions</caption>` +
+    '<thead><tr><th scope="col">rank</th><th scope="col">position [m]</th><th scope="col">combined [µg/m³]</th><th scope="col">highest PC at</th>' +
+    (standardName ? `<th scope="col">% of ${escapeHtml(standardName)}</th>` : '') +
+    '</tr></thead><tbody>' +
+    listed
+      .map(
+        (c) =>
+          `<tr><th scope="row">${c.rank}</th><td>x ${Math.round(c.x_m)}, y ${Math.round(c.y_m)}</td><td>${formatConcentration(c.combined_ug_m3)}</td>` +
+          `<td>${escapeHtml(receptorNames.get(c.highestReceptor) ?? c.highestReceptor)} (${formatConcentration(c.highestPc_ug_m3)})</td>` +
+          (standardName ? `<td>${c.percentOfStandard === null ? '–' : `${c.percentOfStandard} %`}</td>` : '') +
+          '</tr>',
+      )
+      .join('') +
+    '</tbody></table></div>' +
+    `<p class="caution-inline" data-testid="study-caution">${escapeHtml(siting.caution)}</p>`
   );
 }

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { SCREENING_CAUTION } from '../../../server/writers/caution.ts';
 import { downloadsHtml } from '../../../web/results/downloads.ts';
 import { lineChartSvg, niceTicks } from '../../../web/results/lineChart.ts';
-import { stackHeightResultHtml, sweepResultHtml, type StackHeightFile, type SweepFile } from '../../../web/results/studyResults.ts';
+import { sitingResultHtml, stackHeightResultHtml, sweepResultHtml, type StackHeightFile, type SweepFile } from '../../../web/results/studyResults.ts';
 
 const sweep: SweepFile = {
   format: 'plumeplan.sweep/1',
@@ -82,6 +82,31 @@ describe('study results', () => {
     // the target at 5 sits halfway between 0 and 10
     expect(target).toBeCloseTo((bottom + topOfTen) / 2, 0);
     expect(svg).toContain('<title');
+  });
+
+  it('states the best siting position and ranks the candidates with their share of the standard', () => {
+    const flat = text(
+      sitingResultHtml(
+        {
+          format: 'plumeplan.siting/1',
+          caution: SCREENING_CAUTION,
+          statistic: 'steady',
+          map: { meaning: 'highest PC in the one steady weather state [ug/m3] if the stack stood at each grid column centre' },
+          stack: { id: 'boiler-stack' },
+          standard: { name: 'NO2 1-hour', limit_ug_m3: 200 },
+          best: { x_m: -62.4, y_m: 10.2, lon: -2.2851, lat: 54.0613, combined_ug_m3: 4.2 },
+          candidates: [
+            { rank: 1, id: 'c-1', x_m: -62.4, y_m: 10.2, combined_ug_m3: 4.2, highestPc_ug_m3: 4.2, highestReceptor: 'a', percentOfStandard: 2.1, verdict: 'screenedOut' },
+            { rank: 2, id: 'c-2', x_m: 40, y_m: -30, combined_ug_m3: 6.5, highestPc_ug_m3: 6.5, highestReceptor: 'a', percentOfStandard: 3.3, verdict: 'screenedOut' },
+          ],
+        },
+        new Map([['a', 'Ashby Lane houses']]),
+      ),
+    );
+    expect(flat).toContain('Best position for boiler-stack: -62 m east, 10 m north of the site');
+    expect(flat).toContain('1 x -62, y 10 4.2 Ashby Lane houses (4.2) 2.1 %');
+    expect(flat).toContain('The 2 best of 2 candidate positions');
+    expect(flat).toContain(SCREENING_CAUTION.slice(0, 40));
   });
 
   it('gives round 1-2-5 ticks', () => {
