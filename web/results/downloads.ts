@@ -42,6 +42,13 @@ export function formatBytes(bytes: number): string {
   return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
 }
 
+/** A file's name for people; a comparison's side files (a.NAME, b.NAME) are named by their side. */
+export function fileLabel(name: string): string {
+  const side = /^([ab])\.(.+)$/.exec(name);
+  if (side) return `${side[1].toUpperCase()}: ${FILE_LABELS[side[2]] ?? side[2]}`;
+  return FILE_LABELS[name] ?? name;
+}
+
 /** The run's files as a list of links, the pack's first. */
 export function downloadsHtml(run: { results: readonly { name: string; bytes: number; url: string }[] }): string {
   const rank = (name: string) => {
@@ -53,12 +60,12 @@ export function downloadsHtml(run: { results: readonly { name: string; bytes: nu
   return (
     '<ul class="files">' +
     files
-      .map((file) => `<li><a href="${escapeHtml(file.url)}" download="${escapeHtml(file.name)}" data-testid="download-${escapeHtml(file.name)}">${escapeHtml(FILE_LABELS[file.name] ?? file.name)}</a> <span class="muted">${formatBytes(file.bytes)}</span></li>`)
+      .map((file) => `<li><a href="${escapeHtml(file.url)}" download="${escapeHtml(file.name)}" data-testid="download-${escapeHtml(file.name)}">${escapeHtml(fileLabel(file.name))}</a> <span class="muted">${formatBytes(file.bytes)}</span></li>`)
       .join('') +
     '</ul><p class="hint">Each file carries the screening caution' +
     (files.some((file) => file.name.endsWith('.csv')) ? ' (a plain CSV travels with the JSON beside it)' : '') +
     '.' +
-    (pack ? '' : ' The consultation pack (report PDF, GeoTIFF, map PNG, zip) comes with a run that asks for it.') +
+    (pack || !files.some((file) => file.name === 'summary.json') ? '' : ' The consultation pack (report PDF, GeoTIFF, map PNG, zip) comes with a run that asks for it.') +
     '</p>'
   );
 }

@@ -18,6 +18,7 @@ import type { ScenarioDocument } from '../state/scenarioDocument.ts';
 import { ApiClient, ApiError, FINAL_RUN_STATUSES, type RunRecord, type RunUpdate } from '../api/client.ts';
 import { renderLegend, type LegendContent } from './legend.ts';
 import { downloadsHtml } from './downloads.ts';
+import { comparisonResultHtml, type ComparisonFile } from './studyResults.ts';
 import type { ViewSettings } from './viewPanel.ts';
 
 export interface ResultsPanelHooks {
@@ -445,10 +446,49 @@ export class ResultsPanel {
         `<p>A: <b>${escapeHtml(String(this.doc.view.name ?? 'this scenario'))}</b> (rev. ${mine.revision}); B: <b>${escapeHtml(other.name)}</b> (rev. ${other.revision}); both ${escapeHtml(mine.mode)} runs.</p>` +
         `<table class="results" data-testid="compare-table"><caption>Receptor ${escapeHtml(column.replace(/_ug_m3$/, ''))} [µg/m³]</caption><thead><tr><th scope="col">receptor</th><th scope="col">A</th><th scope="col">B</th><th scope="col">A − B</th></tr></thead><tbody>` +
         deltas.map((d) => `<tr><th scope="row">${escapeHtml(d.name)}</th><td>${number(d.a_ug_m3)}</td><td>${number(d.b_ug_m3)}</td><td>${number(d.delta_ug_m3, true)}</td></tr>`).join('') +
-        '</tbody></table><button type="button" data-action="back-to-run">Show this scenario\'s run again</button>';
+        '</tbody></table><button type="button" data-action="back-to-run">Show this scenario\'s run again</button> ' +
+        '<button type="button" data-action="server-compare" data-testid="server-compare-button">Areas and verdicts that change</button>' +
+        '<div class="study-status" role="status" aria-live="polite" data-testid="server-compare-status"></div><div data-testid="server-compare"></div>';
       element.querySelector('[data-action="back-to-run"]')?.addEventListener('click', () => this.hooks.showField(mineField));
+      const serverButton = element.querySelector('[data-action="server-compare"]') as HTMLButtonElement;
+      serverButton.addEventListener('click', () => void this.serverComparison(mine.id, accepted.id, serverButton));
     } catch (error) {
       element.innerHTML = `<p class="problem">The comparison could not be made: ${escapeHtml(error instanceof Error ? error.message : String(error))}</p>`;
+    }
+  }
+
+  /**
+   * The server's comparison of the two runs (run kind `compare`, B against A): each level's area and
+   * every screening verdict that changes, with its files. Both sides are run again on the server (the
+   * solver is deterministic, so the figures are the runs').
+   */
+  private async serverComparison(runA: string, runB: string, button: HTMLButtonElement): Promise<void> {
+    const status = this.q('[data-testid="server-compare-status"]');
+    button.disabled = true;
+    try {
+      const accepted = await this.api.startStudy({ kind: 'compare', a: { runId: runA }, b: { runId: runB } });
+      status.textContent = 'Comparing on the server…';
+      const final = await new Promise<RunUpdate>((resolve) => {
+        this.api.followRun(accepted.id, (update) => {
+          if (FINAL_RUN_STATUSES.includes(update.status)) resolve(update);
+          else status.textContent = `Comparing: ${Math.round(update.progress * 100)} %`;
+        });
+      });
+      if (final.status !== 'done') {
+        status.textContent = `The comparison ended ${final.status}: ${final.error?.error ?? final.message}`;
+        return;
+      }
+      const run = await this.api.getRun(accepted.id);
+      const file = run.results.find((f) => f.name === 'comparison.json');
+      if (!file) return;
+      const comparison = await this.api.resultJson<ComparisonFile>(file);
+      const names = new Map((this.runReceptors?.rows ?? []).map((r) => [r.id, String(r.name ?? r.id)]));
+      status.textContent = 'Done.';
+      this.q('[data-testid="server-compare"]').innerHTML = comparisonResultHtml(comparison, names) + downloadsHtml(run);
+    } catch (error) {
+      status.textContent = `The comparison was refused: ${error instanceof Error ? error.message : String(error)}`;
+    } finally {
+      button.disabled = false;
     }
   }
 

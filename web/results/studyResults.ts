@@ -157,3 +157,50 @@ export function sitingResultHtml(siting: SitingFile, receptorNames: ReadonlyMap<
     `<p class="caution-inline" data-testid="study-caution">${escapeHtml(siting.caution)}</p>`
   );
 }
+
+export interface ComparisonFile {
+  format: string;
+  a: { label: string };
+  b: { label: string };
+  levels: { basis: string; areas: { level_ug_m3: number; a_m2: number; b_m2: number; change_m2: number; change_pct: number | null }[] };
+  verdictChanges: { standard: string; where: string; a: string; b: string; a_pc_ug_m3: number; b_pc_ug_m3: number }[];
+  notes: string[];
+  caution: string;
+}
+
+const OUTCOME_NAMES: Record<string, string> = {
+  screenedOut: 'insignificant',
+  notScreenedOut: 'assess further',
+  undetermined: 'undecided',
+  indicative: 'indicative',
+};
+
+/** The server's comparison: each level's area in A and B, and every screening verdict that changes. */
+export function comparisonResultHtml(comparison: ComparisonFile, receptorNames: ReadonlyMap<string, string>): string {
+  const ha = (m2: number) => String(Number((m2 / 10_000).toPrecision(2)));
+  const areas =
+    '<table class="results mini" data-testid="compare-areas"><caption>Ground at or above each level [ha], B against A</caption>' +
+    '<thead><tr><th scope="col">level [µg/m³]</th><th scope="col">A</th><th scope="col">B</th><th scope="col">B − A</th></tr></thead><tbody>' +
+    comparison.levels.areas
+      .map((l) => `<tr><td>${formatConcentration(l.level_ug_m3)}</td><td>${ha(l.a_m2)}</td><td>${ha(l.b_m2)}</td><td>${l.change_m2 > 0 ? '+' : ''}${ha(l.change_m2)}${l.change_pct === null ? '' : ` (${l.change_pct > 0 ? '+' : ''}${l.change_pct} %)`}</td></tr>`)
+      .join('') +
+    '</tbody></table>';
+  const verdicts =
+    comparison.verdictChanges.length === 0
+      ? '<p class="hint" data-testid="compare-verdicts">No screening verdict changes between A and B.</p>'
+      : '<ul class="notes" data-testid="compare-verdicts">' +
+        comparison.verdictChanges
+          .map((v) => {
+            const where = v.where === 'maximum' ? 'the point of maximum impact' : (receptorNames.get(v.where) ?? v.where);
+            return `<li>${escapeHtml(v.standard)} at ${escapeHtml(where)}: ${OUTCOME_NAMES[v.a] ?? escapeHtml(v.a)} (A, ${formatConcentration(v.a_pc_ug_m3)} µg/m³) → ${OUTCOME_NAMES[v.b] ?? escapeHtml(v.b)} (B, ${formatConcentration(v.b_pc_ug_m3)} µg/m³)</li>`;
+          })
+          .join('') +
+        '</ul>';
+  return (
+    `<p class="hint">A: ${escapeHtml(comparison.a.label)}; B: ${escapeHtml(comparison.b.label)}. ${escapeHtml(comparison.levels.basis)}.</p>` +
+    areas +
+    verdicts +
+    (comparison.notes.length > 0 ? `<ul class="notes">${comparison.notes.map((n) => `<li>${escapeHtml(n)}</li>`).join('')}</ul>` : '') +
+    `<p class="caution-inline">${escapeHtml(comparison.caution)}</p>`
+  );
+}

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { SCREENING_CAUTION } from '../../../server/writers/caution.ts';
 import { downloadsHtml } from '../../../web/results/downloads.ts';
 import { lineChartSvg, niceTicks } from '../../../web/results/lineChart.ts';
-import { sitingResultHtml, stackHeightResultHtml, sweepResultHtml, type StackHeightFile, type SweepFile } from '../../../web/results/studyResults.ts';
+import { comparisonResultHtml, sitingResultHtml, stackHeightResultHtml, sweepResultHtml, type StackHeightFile, type SweepFile } from '../../../web/results/studyResults.ts';
 
 const sweep: SweepFile = {
   format: 'plumeplan.sweep/1',
@@ -109,6 +109,26 @@ describe('study results', () => {
     expect(flat).toContain(SCREENING_CAUTION.slice(0, 40));
   });
 
+  it('shows the server comparison: areas of A and B per level, and each verdict that changes', () => {
+    const flat = text(
+      comparisonResultHtml(
+        {
+          format: 'plumeplan.comparison/1',
+          a: { label: 'demo (run r1)' },
+          b: { label: 'taller (run r2)' },
+          levels: { basis: 'round numbers across the larger peak', areas: [{ level_ug_m3: 1, a_m2: 2_800_000, b_m2: 1_400_000, change_m2: -1_400_000, change_pct: -50 }] },
+          verdictChanges: [{ standard: 'NO2 1-hour', where: 'a', a: 'notScreenedOut', b: 'screenedOut', a_pc_ug_m3: 30, b_pc_ug_m3: 12 }],
+          notes: [],
+          caution: SCREENING_CAUTION,
+        },
+        new Map([['a', 'Ashby Lane houses']]),
+      ),
+    );
+    expect(flat).toContain('1 280 140 -140 (-50 %)');
+    expect(flat).toContain('NO2 1-hour at Ashby Lane houses: assess further (A, 30 µg/m³) → insignificant (B, 12 µg/m³)');
+    expect(flat).toContain(SCREENING_CAUTION.slice(0, 40));
+  });
+
   it('gives round 1-2-5 ticks', () => {
     expect(niceTicks(0, 16.9)).toEqual([0, 5, 10, 15]);
     expect(niceTicks(10, 120)).toEqual([20, 40, 60, 80, 100, 120]);
@@ -120,5 +140,6 @@ describe('study results', () => {
     const order = [...withPack.matchAll(/data-testid="download-([^"]+)"/g)].map((m) => m[1]);
     expect(order).toEqual(['report.pdf', 'ground.tif', 'map.png', 'plumeplan-run.zip', 'summary.json']);
     expect(text(downloadsHtml({ results: [file('summary.json')] }))).toContain('comes with a run that asks for it');
+    expect(text(downloadsHtml({ results: [file('a.summary.json'), file('comparison.json')] }))).toContain('A: Summary (JSON)');
   });
 });
