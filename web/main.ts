@@ -23,6 +23,7 @@ import { MetricGridLayer } from './map/metricGrid.ts';
 import { PreviewClient } from './preview/previewClient.ts';
 import { ResultsPanel } from './results/resultsPanel.ts';
 import { LibraryPanel } from './results/libraryPanel.ts';
+import { StudiesPanel } from './results/studiesPanel.ts';
 import { ViewPanel, loadViewSettings, type ViewSettings } from './results/viewPanel.ts';
 import { ApiClient } from './api/client.ts';
 import { ScenarioDocument, type RawScenario } from './state/scenarioDocument.ts';
@@ -210,6 +211,10 @@ async function start(): Promise<void> {
   new ObjectPanel(byId('panel-objects'), doc, editLayer);
   new ConditionsPanel(byId('panel-conditions'), doc);
   new LibraryPanel(byId('panel-library'), doc, api, results);
+  new StudiesPanel(byId('panel-studies'), doc, api, async () => {
+    if ((doc.dirty || doc.saved === null) && !(await results.save())) return null;
+    return doc.saved;
+  });
   new ViewPanel(byId('panel-view'), map, storage, settings, (next) => {
     const tileChanged = next.tileUrl !== settings.tileUrl;
     settings = next;

@@ -241,7 +241,17 @@ describe('the map page', () => {
     expect(await page.locator('[data-testid="legend"]').textContent()).toMatch(/difference/);
     await page.screenshot({ path: path.join(SCREENSHOTS, 'page-compare-1280x800.png') });
 
-    // axe-core on the page with results on show.
+    // A study on the server: a Gaussian sweep of the boiler stack's height, shown as a table and a chart
+    // with the caution its file carries.
+    await page.click('#tab-studies');
+    await page.click('[data-testid="sweep-button"]');
+    await page.waitForSelector('[data-testid="sweep-table"]', { timeout: RUN_WAIT_ms });
+    expect(await page.locator('[data-testid="sweep-table"] tbody tr').count()).toBe(5);
+    expect(await page.locator('[data-testid="sweep-result"] svg title').textContent()).toMatch(/stack height/);
+    expect(await page.locator('[data-testid="study-caution"]').textContent()).toBe(SCREENING_CAUTION);
+    await page.screenshot({ path: path.join(SCREENSHOTS, 'page-sweep-1280x800.png') });
+
+    // axe-core on the page with results and a study on show.
     const results = await new AxeBuilder({ page }).analyze();
     const serious = results.violations.filter((violation) => violation.impact === 'serious' || violation.impact === 'critical');
     expect(serious.map((violation) => `${violation.id}: ${violation.nodes.map((node) => node.target.join(' ')).join('; ')}`)).toEqual([]);

@@ -39,7 +39,7 @@ describe('plumeplan run on the demo scenario, Gaussian mode', () => {
   let run: ReturnType<typeof plumeplan>;
   beforeAll(() => {
     run = plumeplan('run', DEMO, '--out', out, '--mode', 'gaussian');
-  });
+  }, 300_000);
 
   it('exits 0 and says where the results went and what the peak is', () => {
     // stderr carries nothing but progress lines (shown only when a run takes over a second, which
@@ -94,7 +94,7 @@ describe('plumeplan run on the demo scenario, Gaussian mode', () => {
 });
 
 describe('plumeplan run without --mode: grid mode by default', () => {
-  it('solves on the grid and writes a mass budget (a smaller copy of the demo, 40 x 40 x 10 cells)', () => {
+  it('solves on the grid and writes a mass budget (a smaller copy of the demo, 40 x 40 x 10 cells)', { timeout: 300_000 }, () => {
     const scenario = JSON.parse(readFileSync(DEMO, 'utf8'));
     delete scenario.$schema;
     scenario.domain = { halfWidth_m: 3000, spacing_m: 150, height_m: 1000, layers: 10 };
@@ -147,8 +147,9 @@ describe('plumeplan run on an hourly series in grid mode (the solver thread pool
       // receptors.csv rounds to 3 significant figures
       expect(Math.abs(Number(rows[r + 1][meanColumn]) - directMeans[r]) / directMeans[r]).toBeLessThan(5e-3);
     }
-    // The run writes the consultation pack too (GeoTIFF, figures, report, zip): give it the suite's usual room.
-  }, 120_000);
+    // The run writes the consultation pack too (GeoTIFF, figures, report, zip). It took 60.5 s and 67 s on
+    // a loaded machine: the limit is generous (a slow machine slows the test, never fails it).
+  }, 600_000);
 
   it('Ctrl-C (SIGINT) during the demo year stops the pool at once: exit 130, nothing written', async () => {
     const out = path.join(scratch, 'interrupted-year');
@@ -164,7 +165,7 @@ describe('plumeplan run on an hourly series in grid mode (the solver thread pool
     expect(code, stderr).toBe(130);
     expect(stderr).toContain('interrupted; no results written');
     expect(existsSync(path.join(out, 'summary.json'))).toBe(false);
-  }, 60_000);
+  }, 300_000);
 });
 
 describe('plumeplan exit codes', () => {

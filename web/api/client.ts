@@ -132,8 +132,16 @@ export class ApiClient {
     return this.request('DELETE', `/api/scenarios/${encodeURIComponent(id)}`);
   }
 
-  startRun(scenarioId: string, revision: number, mode?: 'grid' | 'gaussian'): Promise<{ id: string; status: RunStatus; reused: boolean; url: string }> {
-    return this.request('POST', '/api/runs', mode === undefined ? { scenarioId, revision } : { scenarioId, revision, mode });
+  startRun(scenarioId: string, revision: number, mode?: 'grid' | 'gaussian', pack?: 'none' | 'quick' | 'full'): Promise<{ id: string; status: RunStatus; reused: boolean; url: string }> {
+    const body: Record<string, unknown> = { scenarioId, revision };
+    if (mode !== undefined) body.mode = mode;
+    if (pack !== undefined && pack !== 'none') body.pack = pack;
+    return this.request('POST', '/api/runs', body);
+  }
+
+  /** A run of another kind: `sweep`, `stack-height`, `compare` or `site` (docs/http-api.md). */
+  startStudy(body: Record<string, unknown>): Promise<{ id: string; status: RunStatus; reused: boolean; url: string }> {
+    return this.request('POST', '/api/runs', body);
   }
 
   getRun(id: string): Promise<RunRecord> {

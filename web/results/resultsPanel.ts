@@ -17,6 +17,8 @@ import { escapeHtml } from '../map/mapControls.ts';
 import type { ScenarioDocument } from '../state/scenarioDocument.ts';
 import { ApiClient, ApiError, FINAL_RUN_STATUSES, type RunRecord, type RunUpdate } from '../api/client.ts';
 import { renderLegend, type LegendContent } from './legend.ts';
+import { downloadsHtml } from './downloads.ts';
+import { comparisonResultHtml, type ComparisonFile } from './studyResults.ts';
 import type { ViewSettings } from './viewPanel.ts';
 
 export interface ResultsPanelHooks {
@@ -39,15 +41,6 @@ interface RunSummary {
   notes?: string[];
   weatherKind?: string;
 }
-
-/** Labels of the result files the server offers. */
-const FILE_LABELS: Record<string, string> = {
-  'summary.json': 'Summary (JSON)',
-  'receptors.csv': 'Receptor figures (CSV)',
-  'footprint.geojson': 'Footprint isopleths (GeoJSON)',
-  'windrose.svg': 'Wind rose (SVG)',
-  'ground-field.bin': 'Ground field (binary float32)',
-};
 
 export class ResultsPanel {
   private readonly root: HTMLElement;
@@ -83,6 +76,11 @@ export class ResultsPanel {
           <button type="button" data-action="cancel" data-testid="cancel-button" disabled>Cancel</button>
           <button type="button" data-action="show-preview" disabled>Show preview</button>
         </div>
+        <label class="inline-field">Files <select data-testid="pack-choice" aria-label="Files the run makes">
+          <option value="none">core results (quickest)</option>
+          <option value="quick">with the consultation pack: report page, GeoTIFF, map, zip</option>
+          <option value="full">with the full pack: also the report PDF and map PNG (slowest)</option>
+        </select></label>
         <div class="progress-wrap">
           <progress max="1" value="0" data-testid="run-progress" aria-label="Run progress"></progress>
           <div class="run-status" data-testid="run-status" role="status" aria-live="polite">No run yet.</div>
@@ -315,7 +313,8 @@ export class ResultsPanel {
     if (saved === null) return;
     this.stopFollowing?.();
     try {
-      const accepted = await this.api.startRun(saved.id, saved.revision);
+      const pack = this.q<HTMLSelectElement>('[data-testid="pack-choice"]').value as 'none' | 'quick' | 'full';
+      const accepted = await this.api.startRun(saved.id, saved.revision, undefined, pack);
       this.setRunning(true);
       this.setRunStatus(accepted.reused ? 'Same scenario run before: using its results.' : 'Queued…');
       this.stopFollowing = this.api.followRun(accepted.id, (update) => void this.onUpdate(update));
@@ -407,13 +406,7 @@ export class ResultsPanel {
   }
 
   private renderDownloads(run: RunRecord): void {
-    const element = this.q('[data-testid="downloads"]');
-    element.innerHTML =
-      '<ul class="files">' +
-      run.results
-        .map((file) => `<li><a href="${escapeHtml(file.url)}" download="${escapeHtml(file.name)}" data-testid="download-${escapeHtml(file.name)}">${escapeHtml(FILE_LABELS[file.name] ?? file.name)}</a> <span class="muted">${formatBytes(file.bytes)}</span></li>`)
-        .join('') +
-      '</ul><p class="hint">Each file carries the screening caution (the CSV travels with the summary\'s).</p>';
+    this.q('[data-testid="downloads"]').innerHTML = downloadsHtml(run);
   }
 
   /** Run (or reuse the run of) another saved scenario and compare it with this scenario's run. */
@@ -453,10 +446,49 @@ export class ResultsPanel {
         `<p>A: <b>${escapeHtml(String(this.doc.view.name ?? 'this scenario'))}</b> (rev. ${mine.revision}); B: <b>${escapeHtml(other.name)}</b> (rev. ${other.revision}); both ${escapeHtml(mine.mode)} runs.</p>` +
         `<table class="results" data-testid="compare-table"><caption>Receptor ${escapeHtml(column.replace(/_ug_m3$/, ''))} [µg/m³]</caption><thead><tr><th scope="col">receptor</th><th scope="col">A</th><th scope="col">B</th><th scope="col">A − B</th></tr></thead><tbody>` +
         deltas.map((d) => `<tr><th scope="row">${escapeHtml(d.name)}</th><td>${number(d.a_ug_m3)}</td><td>${number(d.b_ug_m3)}</td><td>${number(d.delta_ug_m3, true)}</td></tr>`).join('') +
-        '</tbody></table><button type="button" data-action="back-to-run">Show this scenario\'s run again</button>';
+        '</tbody></table><button type="button" data-action="back-to-run">Show this scenario\'s run again</button> ' +
+        '<button type="button" data-action="server-compare" data-testid="server-compare-button">Areas and verdicts that change</button>' +
+        '<div class="study-status" role="status" aria-live="polite" data-testid="server-compare-status"></div><div data-testid="server-compare"></div>';
       element.querySelector('[data-action="back-to-run"]')?.addEventListener('click', () => this.hooks.showField(mineField));
+      const serverButton = element.querySelector('[data-action="server-compare"]') as HTMLButtonElement;
+      serverButton.addEventListener('click', () => void this.serverComparison(mine.id, accepted.id, serverButton));
     } catch (error) {
       element.innerHTML = `<p class="problem">The comparison could not be made: ${escapeHtml(error instanceof Error ? error.message : String(error))}</p>`;
+    }
+  }
+
+  /**
+   * The server's comparison of the two runs (run kind `compare`, B against A): each level's area and
+   * every screening verdict that changes, with its files. Both sides are run again on the server (the
+   * solver is deterministic, so the figures are the runs').
+   */
+  private async serverComparison(runA: string, runB: string, button: HTMLButtonElement): Promise<void> {
+    const status = this.q('[data-testid="server-compare-status"]');
+    button.disabled = true;
+    try {
+      const accepted = await this.api.startStudy({ kind: 'compare', a: { runId: runA }, b: { runId: runB } });
+      status.textContent = 'Comparing on the server…';
+      const final = await new Promise<RunUpdate>((resolve) => {
+        this.api.followRun(accepted.id, (update) => {
+          if (FINAL_RUN_STATUSES.includes(update.status)) resolve(update);
+          else status.textContent = `Comparing: ${Math.round(update.progress * 100)} %`;
+        });
+      });
+      if (final.status !== 'done') {
+        status.textContent = `The comparison ended ${final.status}: ${final.error?.error ?? final.message}`;
+        return;
+      }
+      const run = await this.api.getRun(accepted.id);
+      const file = run.results.find((f) => f.name === 'comparison.json');
+      if (!file) return;
+      const comparison = await this.api.resultJson<ComparisonFile>(file);
+      const names = new Map((this.runReceptors?.rows ?? []).map((r) => [r.id, String(r.name ?? r.id)]));
+      status.textContent = 'Done.';
+      this.q('[data-testid="server-compare"]').innerHTML = comparisonResultHtml(comparison, names) + downloadsHtml(run);
+    } catch (error) {
+      status.textContent = `The comparison was refused: ${error instanceof Error ? error.message : String(error)}`;
+    } finally {
+      button.disabled = false;
     }
   }
 
@@ -505,8 +537,4 @@ function formatDuration(seconds: number): string {
   return `${Math.round(seconds / 60)} min`;
 }
 
-function formatBytes(bytes: number): string {
-  if (bytes < 1024) return `${bytes} B`;
-  if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} kB`;
-  return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
-}
+
