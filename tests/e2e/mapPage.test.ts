@@ -240,6 +240,12 @@ describe('the map page', () => {
     expect(rows.find((row) => row.includes('School'))).toMatch(/\+\d/);
     expect(await page.locator('[data-testid="legend"]').textContent()).toMatch(/difference/);
     await page.screenshot({ path: path.join(SCREENSHOTS, 'page-compare-1280x800.png') });
+    // The server's comparison of the same two runs (run kind compare): areas per level of A and B, and
+    // its files with the difference bands.
+    await page.click('[data-testid="server-compare-button"]');
+    await expect.poll(() => page.locator('[data-testid="server-compare-status"]').textContent(), { timeout: RUN_WAIT_ms, interval: 500 }).toBe('Done.');
+    expect(await page.locator('[data-testid="compare-areas"] tbody tr').count()).toBeGreaterThan(0);
+    expect(await page.locator('[data-testid="server-compare"] [data-testid="download-difference.geojson"]').count()).toBe(1);
 
     // A study on the server: a Gaussian sweep of the boiler stack's height, shown as a table and a chart
     // with the caution its file carries.
