@@ -10,6 +10,9 @@ export const ALL_SECTIONS = ['transport', 'bandwidth', 'steady', 'siting', 'weat
 /** The assessment part's own sections, by the names of the lines they print. */
 export const ASSESSMENT_SECTIONS = ['screening-set', 'stack-height-sweep'] as const;
 
+/** The server part's own sections: the reads during two runs, the consultation pack, cancelling a sweep. */
+export const SERVER_SECTIONS = ['server-reads', 'server-pack', 'server-cancel'] as const;
+
 /** The sections asked for (every one when PLUMEPLAN_BENCH_SECTIONS is unset or empty). */
 export function benchSections(value = process.env.PLUMEPLAN_BENCH_SECTIONS): Set<string> {
   const named = (value ?? '').split(',').map((name) => name.trim()).filter((name) => name !== '');
@@ -24,4 +27,14 @@ export function wantsAssessment(sections: Set<string>): boolean {
 /** Whether one of the assessment part's sections runs: asked for by its name or with the whole part. */
 export function wantsAssessmentSection(sections: Set<string>, name: (typeof ASSESSMENT_SECTIONS)[number]): boolean {
   return sections.has('assessment') || sections.has(name);
+}
+
+/** Whether any of the server part runs. */
+export function wantsServer(sections: Set<string>): boolean {
+  return sections.has('server') || SERVER_SECTIONS.some((name) => sections.has(name));
+}
+
+/** Whether one of the server part's sections runs: asked for by its name or with the whole part. */
+export function wantsServerSection(sections: Set<string>, name: (typeof SERVER_SECTIONS)[number]): boolean {
+  return sections.has('server') || sections.has(name);
 }
