@@ -25,6 +25,7 @@ import { reuseRules, solveWithReuse, type SeriesBaseInput, type SeriesRunOptions
 import { distinctNotes, meanSourceReports } from '../drivers/seriesSummaries.ts';
 import { groundPeak } from '../drivers/seriesStatistics.ts';
 import { solveSteady } from '../drivers/solveSteady.ts';
+import { seriesGridChecks } from '../drivers/seriesChecks.ts';
 import type { ResolvedWeather, ScenarioRunResult, StandardField } from '../drivers/types.ts';
 import { isComputable, pcFactorOf } from './standards.ts';
 
@@ -119,10 +120,12 @@ export interface WorstWeather {
  *
  * @param base everything a steady solve needs but the weather
  * @param weather the set's options
- * @param options mode, assessment (for the standards' upper bounds), progress, solver(s)
+ * @param options mode, assessment (for the standards' upper bounds), progress, solver(s), and in grid
+ *   mode the checks (../drivers/seriesChecks.ts): the Gaussian mode and half the cell size at the states
+ *   giving the highest figures, as for an hourly series or a wind rose
  * @returns receptor column max_hourly_ug_m3; footprint = the highest hourly ground-level PC; each
  *   computable standard's upper bound (basis "upperBound"); the worst weather at each receptor and at the
- *   ground maximum in the summary
+ *   ground maximum in the summary; modeCheck and resolutionCheck in the summary for a checked grid run
  */
 export async function runScreeningSet(base: SeriesBaseInput, weather: ScreeningSetWeather, options: SeriesRunOptions): Promise<ScenarioRunResult> {
   const started = performance.now();
@@ -179,6 +182,16 @@ export async function runScreeningSet(base: SeriesBaseInput, weather: ScreeningS
     };
   });
   const solveSeconds = fields.solves.reduce((sum, s) => sum + s.wallSeconds, 0);
+  // The set's figures are maxima over its states, so the states of the highest figures are the ones whose
+  // difference between modes or cell sizes reaches the result: the same choice as a series' checks.
+  const checkSummary: Record<string, unknown> = {};
+  const checkNotes: string[] = [];
+  if (options.mode === 'grid' && options.checks !== undefined) {
+    const checks = await seriesGridChecks(base, states, fields, (h) => `screening state ${h}`, options.checks, control, undefined, 'the screening weather set');
+    checkSummary.modeCheck = checks.modeCheck;
+    checkSummary.resolutionCheck = checks.resolutionCheck;
+    checkNotes.push(...checks.notes);
+  }
   return {
     mode: options.mode,
     weatherKind: 'screeningSet',
@@ -195,9 +208,11 @@ export async function runScreeningSet(base: SeriesBaseInput, weather: ScreeningS
         `${fields.solves.length} steady solves (${fields.identicalReuses} identical states reused, ${fields.scaledReuses} by exact wind-speed scaling)`,
       'figures are the highest hourly process contribution over the set: an upper bound of every percentile and mean, not a statistic of a year',
       ...distinctNotes(fields.solves),
+      ...checkNotes,
     ],
     extraSummary: {
       ...(options.extraSummary ?? {}),
+      ...checkSummary,
       weather: {
         kind: 'screeningSet',
         origin: SCREENING_SET_ORIGIN,

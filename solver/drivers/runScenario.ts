@@ -156,6 +156,7 @@ async function dispatchByWeather(
         control,
         solve: seriesSolvers ?? solve,
         extraSummary: { domain: domainSummary },
+        checks: seriesChecks(scenario, geometry, options),
       });
     default:
       throw new ScenarioInputError(`weather.kind: ${JSON.stringify((weather as { kind: unknown }).kind)} is not a weather kind`);

@@ -124,6 +124,7 @@ export function describeWeather(weather: ResolvedWeather): string {
  * @param fields the series' solves and which state each uses
  * @param labelOf a state's name, e.g. "hour 2026-03-04T05:00Z" or "wind-rose cell 12"
  * @param frequencies a rose's cell frequencies: cells that never occur are not chosen
+ * @param collection what the weathers are, in the basis and the notes (default "the series")
  * @returns the tables for the summary (modeCheck, resolutionCheck) and the notes for the run
  */
 export async function seriesGridChecks(
@@ -134,6 +135,7 @@ export async function seriesGridChecks(
   options: SeriesCheckOptions,
   control: RunControl = {},
   frequencies?: ArrayLike<number>,
+  collection = 'the series',
 ): Promise<{ modeCheck: FieldComparison & { weathers: { weather: string; chosenFor: string[] }[] }; resolutionCheck: Record<string, unknown>; notes: string[] }> {
   const ids = base.receptors.map((receptor) => receptor.id);
   const chosen = chooseCheckedWeathers(base, fields, ids, frequencies);
@@ -143,7 +145,7 @@ export async function seriesGridChecks(
   const { site: _siteForPeaks, ...solveBase } = base;
   const solve = options.solve ?? solveSteady;
   const inner: RunControl = control.signal ? { signal: control.signal } : {};
-  const basisTail = `at ${chosen.states.length} of the ${states.length} weathers of the series (the one giving the highest ground-level figure and each receptor's highest figure; listed in weathers), not every one`;
+  const basisTail = `at ${chosen.states.length} of the ${states.length} weathers of ${collection} (the one giving the highest ground-level figure and each receptor's highest figure; listed in weathers), not every one`;
 
   const gaussian: { receptors: ArrayLike<number>; peak: number }[] = [];
   for (const state of chosen.states) {
@@ -161,7 +163,7 @@ export async function seriesGridChecks(
     weathers,
   };
   const notes = [
-    `mode check: for a series, made ${basisTail}: ${weathers.map((w) => `${w.weather} for ${w.chosenFor.join(' and ')}`).join('; ')}` +
+    `mode check: for ${collection === 'the series' ? 'a series' : collection}, made ${basisTail}: ${weathers.map((w) => `${w.weather} for ${w.chosenFor.join(' and ')}`).join('; ')}` +
       '; the resolution check, when made, at the same weathers',
     ...modeCheck.notes,
   ];
@@ -193,7 +195,7 @@ export async function seriesGridChecks(
     ids.map((id, r) => pair(id, run[chosen.receptorWeather[r]].receptors[r], finer[chosen.receptorWeather[r]].receptors[r], names[chosen.receptorWeather[r]])),
     pair(PEAK_ID, runPeak(chosen.peakWeather), finer[chosen.peakWeather].peak, names[chosen.peakWeather]),
     options.spacing_m,
-    `cells of ${options.spacing_m} m (the series' own figures) against steady solves at ${options.spacing_m / 2} m, same domain, ${basisTail}`,
+    `cells of ${options.spacing_m} m (${collection === 'the series' ? "the series'" : "the run's"} own figures) against steady solves at ${options.spacing_m / 2} m, same domain, ${basisTail}`,
   );
   notes.push(...comparison.notes);
   return { modeCheck, resolutionCheck: { made: true, ...comparison, weathers }, notes };

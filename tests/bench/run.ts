@@ -30,6 +30,7 @@ import { advanceOneStep, SerialStepExecutor, type StepExecutor } from '../../sol
 import { uniformColumnWind } from '../../solver/wind/columnWind.ts';
 import { testGrid } from '../solver/verification/testGrid.ts';
 import { sitingBenchmarks } from './siting.ts';
+import { benchSections, wantsAssessment, wantsServer } from './benchSections.ts';
 
 /** Main-memory bytes a transport step moves per cell: read + write in the pass up, read + write in the pass down. */
 const KERNEL_BYTES_PER_CELL_STEP = 32;
@@ -170,8 +171,12 @@ async function steadyByTimeMarch(input: SteadyRunInput, steady: SteadyFieldResul
   };
 }
 
-/** Sections to run: PLUMEPLAN_BENCH_SECTIONS=transport,bandwidth,steady,siting (default all). */
-const SECTIONS = new Set((process.env.PLUMEPLAN_BENCH_SECTIONS ?? 'transport,bandwidth,steady,siting').split(','));
+/**
+ * Sections to run: PLUMEPLAN_BENCH_SECTIONS, a comma list of transport, bandwidth, steady, siting, weather,
+ * server, mapPage, assessment (default all); parts of the assessment and server benchmarks also by
+ * name: screening-set, stack-height-sweep, server-reads, server-pack, server-cancel (tests/bench/benchSections.ts).
+ */
+const SECTIONS = benchSections();
 
 async function main(): Promise<void> {
   const figures = new Map<string, number>();
@@ -261,7 +266,7 @@ async function steadySection(): Promise<void> {
 }
 
 await main();
-await import('./weather.ts'); // weather benchmarks: the demo met year hour by hour, a continuous week (tests/bench/weather.ts)
-await import('./server.ts'); // server benchmarks: API reads while two runs compute, the event loop's longest stall (tests/bench/server.ts)
-await import('./mapPage.ts'); // map page benchmarks: run to overlay drawn, preview while dragging a stack (tests/bench/mapPage.ts)
-await import('./assessment.ts'); // the screening weather set on the demo, a 10-member stack-height sweep (tests/bench/assessment.ts)
+if (SECTIONS.has('weather')) await import('./weather.ts'); // weather benchmarks: the demo met year hour by hour, a continuous week (tests/bench/weather.ts)
+if (wantsServer(SECTIONS)) await import('./server.ts'); // server benchmarks: API reads while two runs compute, the event loop's longest stall (tests/bench/server.ts)
+if (SECTIONS.has('mapPage')) await import('./mapPage.ts'); // map page benchmarks: run to overlay drawn, preview while dragging a stack (tests/bench/mapPage.ts)
+if (wantsAssessment(SECTIONS)) await import('./assessment.ts'); // the screening weather set on the demo, a 10-member stack-height sweep (tests/bench/assessment.ts)

@@ -3,18 +3,22 @@
  * thresholds (a factor of 1.25 between the modes, 10 % between cell sizes) on made-up fields, and one
  * small run of the demo through runScenario, where both checks are made and their tables land in the
  * summary; the same for a small hourly series and wind rose, where the checks are made at the weathers
- * of the highest figures and the Gaussian side is checked against that weather's own Gaussian run.
+ * of the highest figures and the Gaussian side is checked against that weather's own Gaussian run; and
+ * for a small screening weather set, where a stand-in grid solver (the Gaussian field times a factor)
+ * shows the note appears beyond the 1.25 factor and not within it.
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { parseScenario } from '../../../scenarios/format/schema.ts';
-import type { Scenario } from '../../../scenarios/format/types.ts';
+import type { Scenario, ScreeningSetWeather } from '../../../scenarios/format/types.ts';
 import { compareModes, compareResolutions, MODE_DIFFERENCE_FACTOR, RESOLUTION_CHANGE_LIMIT, type FieldComparison } from '../../../solver/drivers/runChecks.ts';
 import { runScenario } from '../../../solver/drivers/runScenario.ts';
 import { MAX_CHECKED_WEATHERS } from '../../../solver/drivers/seriesChecks.ts';
 import { buildSummary } from '../../../server/writers/summary.ts';
 import type { SteadyFieldResult } from '../../../solver/drivers/types.ts';
+import { screeningWeatherStates } from '../../../solver/assessment/screeningWeather.ts';
+import { solveSteady, type SteadySolver } from '../../../solver/drivers/solveSteady.ts';
 
 function field(receptors: number[], ground: number[]): SteadyFieldResult {
   return {
@@ -165,5 +169,80 @@ describe('checks of a grid-mode hourly series and wind rose (solver/drivers/seri
     expect(modeCheck.weathers.length).toBeGreaterThanOrEqual(1);
     for (const w of modeCheck.weathers) expect(w.weather).not.toMatch(/^wind-rose cell 2 /);
     expect(modeCheck.basis).toContain('of the 3 weathers of the series');
+  });
+});
+
+describe('checks of a grid-mode screening weather set (solver/assessment/screeningWeather.ts)', () => {
+  const demo = path.join(import.meta.dirname, '..', '..', '..', 'scenarios', 'merrowdene-heat-plant', 'scenario.json');
+  function smallSet(sectors: number): Scenario {
+    const raw = JSON.parse(readFileSync(demo, 'utf8'));
+    raw.domain = { halfWidth_m: 3000, spacing_m: 300, height_m: 1000, layers: 10 };
+    raw.weather = { kind: 'screeningSet', sectors };
+    raw.solver = { mode: 'grid' };
+    const outcome = parseScenario(raw);
+    if (!outcome.ok) throw new Error(JSON.stringify(outcome.issues));
+    return outcome.scenario;
+  }
+  type SeriesCheck = FieldComparison & { weathers: { weather: string; chosenFor: string[] }[] };
+
+  it('checks the states of the highest figures against that state\'s own Gaussian run and at half the cell size, into summary.json', async () => {
+    const scenario = smallSet(1);
+    const result = await runScenario(scenario, { mode: 'grid' });
+    const modeCheck = result.extraSummary.modeCheck as SeriesCheck;
+    const resolutionCheck = result.extraSummary.resolutionCheck as { made: boolean } & SeriesCheck;
+    expect(modeCheck.weathers.length).toBeGreaterThanOrEqual(1);
+    expect(modeCheck.weathers.length).toBeLessThanOrEqual(MAX_CHECKED_WEATHERS);
+    expect(modeCheck.weathers[0].chosenFor[0]).toBe('the highest ground-level figure off the site');
+    expect(modeCheck.basis).toContain(`of the 38 weathers of the screening weather set`);
+    // each receptor at the state of its own highest figure: the run's figure is the set's maximum there
+    const max = result.receptorColumns.find((c) => c.key === 'max_hourly_ug_m3')!.values;
+    const states = screeningWeatherStates(scenario.weather as ScreeningSetWeather);
+    for (const [r, item] of modeCheck.receptors.entries()) {
+      expect(item.value_ug_m3).toBeCloseTo(max[r], 9);
+      const state = states[Number(/^screening state (\d+) /.exec(item.weather ?? '')![1])];
+      const steady = await runScenario(
+        (() => {
+          const raw = JSON.parse(readFileSync(demo, 'utf8'));
+          raw.domain = { halfWidth_m: 3000, spacing_m: 300, height_m: 1000, layers: 10 };
+          const { windSpeed_m_s, windFrom_deg, stability, mixingHeight_m, rain_mm_h, airTemperature_K, anemometerHeight_m } = state;
+          raw.weather = { kind: 'steady', windSpeed_m_s, windFrom_deg, stability, mixingHeight_m, rain_mm_h, airTemperature_K, anemometerHeight_m };
+          const outcome = parseScenario(raw);
+          if (!outcome.ok) throw new Error(JSON.stringify(outcome.issues));
+          return outcome.scenario;
+        })(),
+        { mode: 'gaussian' },
+      );
+      expect(item.other_ug_m3).toBeCloseTo(steady.receptorColumns[0].values[r], 9);
+    }
+    expect(resolutionCheck.made).toBe(true);
+    expect(resolutionCheck.basis).toMatch(/^cells of 300 m \(the run's own figures\) against steady solves at 150 m, same domain, at \d of the 38 weathers of the screening weather set/);
+    expect(result.notes.some((note) => note.startsWith('mode check: for the screening weather set, made at'))).toBe(true);
+    const summary = buildSummary(scenario, result) as unknown as Record<string, unknown> & { notes: string[] };
+    expect(summary.modeCheck).toBe(modeCheck);
+    expect(summary.resolutionCheck).toBe(resolutionCheck);
+    for (const note of [...modeCheck.notes, ...resolutionCheck.notes]) expect(summary.notes).toContain(note);
+    const gaussian = await runScenario(scenario, { mode: 'gaussian' });
+    expect(gaussian.extraSummary.modeCheck).toBeUndefined();
+  });
+
+  it('notes a receptor only when the grid figure is more than 1.25 times the Gaussian one', async () => {
+    // A stand-in grid solver that gives the Gaussian field times a factor: every ratio is that factor.
+    const scaledGaussian = (factor: number): SteadySolver => async (input, mode, control) => {
+      const field = await solveSteady(input, 'gaussian', control);
+      if (mode !== 'grid') return field;
+      return { ...field, mode: 'grid', receptors_ug_m3: field.receptors_ug_m3.map((v) => v * factor), groundLevel_ug_m3: field.groundLevel_ug_m3.map((v) => v * factor) };
+    };
+    // four sectors: the wind from 270 deg carries both sources towards the receptors (east-north-east)
+    const figureNote = /^mode check: at (receptor \S+|the ground-level peak) in screening state \d+ /;
+    const within = await runScenario(smallSet(4), { mode: 'grid', solve: scaledGaussian(1.2), resolutionCheck: 'never' });
+    const withinCheck = within.extraSummary.modeCheck as SeriesCheck;
+    for (const item of withinCheck.receptors) expect(item.ratio).toBeCloseTo(1.2, 9);
+    expect(within.notes.filter((note) => figureNote.test(note))).toEqual([]);
+    const beyond = await runScenario(smallSet(4), { mode: 'grid', solve: scaledGaussian(1.5), resolutionCheck: 'never' });
+    const beyondCheck = beyond.extraSummary.modeCheck as SeriesCheck;
+    for (const item of beyondCheck.receptors) expect(item.ratio).toBeCloseTo(1.5, 9);
+    const notes = beyond.notes.filter((note) => figureNote.test(note));
+    expect(notes).toHaveLength(4); // three receptors and the ground-level peak
+    for (const note of notes) expect(note).toMatch(/a factor of 1\.50/);
   });
 });
