@@ -177,9 +177,9 @@ export function openApiDocument(): JsonObject {
       '/api/runs/{id}/assessment': {
         parameters: [idParameter()],
         get: {
-          summary: "The assessment figures of a finished run (summary.json's assessment and peak, with the caution)",
+          summary: "The assessment figures of a finished run (summary.json's assessment, screening verdicts, footprint level areas and peak, with the caution)",
           responses: {
-            '200': { description: 'the figures', content: json({ type: 'object', properties: { id: { type: 'string' }, revision: { type: 'integer' }, assessment: {}, peak: {}, caution: { type: 'string' } } }) },
+            '200': { description: 'the figures', content: json({ type: 'object', properties: { id: { type: 'string' }, revision: { type: 'integer' }, assessment: {}, verdicts: {}, areas: {}, peak: {}, caution: { type: 'string' } } }) },
             '404': errorResponse('no such run'),
             '409': errorResponse('the run is not done'),
           },

@@ -101,7 +101,16 @@ export function runRoutes(deps: RunRouteDependencies): Router {
     const id = idParam(request, 'id');
     const run = doneRun(manager, id);
     const summary = JSON.parse(await readFile(files.pathOf(id, SUMMARY_FILE), 'utf8')) as Record<string, unknown>;
-    response.json({ id, assessment: summary.assessment ?? null, peak: summary.peak ?? null, caution: summary.caution, revision: run.revision });
+    const footprint = summary.footprint as { areas?: unknown } | undefined;
+    response.json({
+      id,
+      assessment: summary.assessment ?? null,
+      verdicts: summary.verdicts ?? null,
+      areas: footprint?.areas ?? null,
+      peak: summary.peak ?? null,
+      caution: summary.caution,
+      revision: run.revision,
+    });
   });
 
   router.get('/:id/results/:name', (request, response, next) => {

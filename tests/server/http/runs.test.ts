@@ -108,6 +108,13 @@ describe('runs', () => {
     expect(response.body.assessment).toMatchObject({ background_ug_m3: 14 });
     expect(response.body.assessment.standards).toHaveLength(2);
     expect(response.body.peak.concentration_ug_m3).toBeGreaterThan(0);
+    // The screening verdicts and footprint areas are summary.json's, served as they are there.
+    const summary = await request(server.app).get(`/api/runs/${gaussianRun}/results/summary.json`).expect(200);
+    const written = JSON.parse(summary.text) as { verdicts: unknown; footprint: { areas: unknown[] } };
+    expect(response.body.verdicts).toEqual(written.verdicts);
+    expect(response.body.verdicts).not.toBeNull();
+    expect(response.body.areas).toEqual(written.footprint.areas);
+    expect(response.body.areas.length).toBeGreaterThan(0);
   });
 
   it('answers an identical submission with the earlier run instead of solving twice', async () => {
