@@ -45,6 +45,11 @@ export interface StackHeightFile {
 /** Most receptor lines a chart draws (beyond them the table still lists every receptor). */
 const MAX_CHART_RECEPTORS = 4;
 
+/** A parameter's description as a column heading: "a point source's stack height" -> "stack height". */
+export function shortParameterName(description: string): string {
+  return description.replace(/\s*\(.*\)$/, '').replace(/^(an?|the)\s+/i, '').replace(/^[\w -]*?source's\s+/i, '');
+}
+
 /** The sweep's table and chart. */
 export function sweepResultHtml(sweep: SweepFile, receptorNames: ReadonlyMap<string, string>): string {
   const name = (id: string) => receptorNames.get(id) ?? id;
@@ -57,8 +62,8 @@ export function sweepResultHtml(sweep: SweepFile, receptorNames: ReadonlyMap<str
   ];
   const chart = lineChartSvg(series, { title: `Process contribution against ${sweep.description}`, xLabel, yLabel: 'PC [µg/m³]' });
   const table =
-    `<table class="results study-table" data-testid="sweep-table"><caption>${escapeHtml(sweep.statistic)} [µg/m³] for each ${escapeHtml(sweep.parameter)}${sweep.sourceId ? ` of ${escapeHtml(sweep.sourceId)}` : ''}</caption>` +
-    `<thead><tr><th scope="col">${escapeHtml(sweep.parameter)} [${escapeHtml(sweep.unit)}]</th><th scope="col">ground max.</th>` +
+    `<table class="results study-table" data-testid="sweep-table"><caption>${escapeHtml(sweep.statistic)} [µg/m³] for each value of ${escapeHtml(sweep.description)}${sweep.sourceId ? ` (${escapeHtml(sweep.sourceId)})` : ''}</caption>` +
+    `<thead><tr><th scope="col">${escapeHtml(shortParameterName(sweep.description))} [${escapeHtml(sweep.unit)}]</th><th scope="col">ground max.</th>` +
     receptorIds.map((id) => `<th scope="col">${escapeHtml(name(id))}</th>`).join('') +
     standardNames.map((s) => `<th scope="col">${escapeHtml(s)} max.</th>`).join('') +
     '</tr></thead><tbody>' +

@@ -34,7 +34,8 @@ describe('study results', () => {
   it('tables every sweep member with the ground maximum, each receptor and each standard', () => {
     const html = sweepResultHtml(sweep, new Map([['a', 'Ashby Lane houses']]));
     const flat = text(html);
-    expect(flat).toContain('stackHeight_m [m] ground max. Ashby Lane houses NO2 1-hour max.');
+    expect(flat).toContain('concentration [µg/m³] for each value of a point source&#39;s stack height (boiler-stack)');
+    expect(flat).toContain('stack height [m] ground max. Ashby Lane houses NO2 1-hour max.');
     expect(flat).toContain('40 15 6 5');
     expect(flat).toContain('members share one grid');
     expect(html).toContain(SCREENING_CAUTION.slice(0, 40));
