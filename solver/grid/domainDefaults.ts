@@ -234,8 +234,8 @@ export function deriveDomainWithReasons(input: {
         `derived domain: ${farthestField} ('${farthestId}', ${(farthest_m / 1000).toFixed(1)} km from the site) needs a half-width of ` +
         `${roundHalfWidth_m} m; at the ${nearSpacing_m} m cells the sources' near field takes that is ${columns} x ${columns} x ` +
         `${DEFAULT_DOMAIN_LAYERS} = ${wanted} cells, above the ${maxCells} a derived domain may have, so the cells are ` +
-        `${spacing_m} m instead of ${nearSpacing_m} m. The figures at the other receptors may differ from a run without it ` +
-        'by more than the resolution check\'s 10 %: give a domain, or check them with plumeplan run --resolution-check',
+        `${spacing_m} m instead of ${nearSpacing_m} m. The figures at the other receptors can then differ from those of a run ` +
+        'without it by more than the resolution check\'s 10 %: give a domain, or check them with plumeplan run --resolution-check',
     };
   }
   return { domain, nearSpacing_m, coarsening };
