@@ -15,7 +15,8 @@
  * D and F: its two nearer receptors (2 km at 20 m) with a farm 1.95 km south (3 km at 20 m: 2.16 M cells,
  * no coarsening), asserted within 10 %; with a farm 3 km south (5 km: 6 M cells at 20 m, so 25 m) and,
  * with all three receptors (4 km at 20 m), a farm 5 km south (8 km: 15.4 M cells at 20 m, so 50 m), where
- * the cell limit forces coarser cells: the note is asserted. docs/near-field.md ("A receptor added") has
+ * the cell limit forces coarser cells: the note is asserted, and for the 5 km farm the figures too (they
+ * hold the 10 %, measured). docs/near-field.md ("A receptor added") has
  * the measured figures of every case.
  */
 import { readFileSync } from 'node:fs';
@@ -79,6 +80,21 @@ describe('a far receptor added to a derived domain', () => {
         );
       }
     });
+  }
+
+  // Where the limit forces coarser cells the note is what is promised; measured, the figures still hold the
+  // 10 % here (the fuel yard is carried below the grid at both cells: SMALL_AREA_SPREADS), so that is asserted too.
+  for (const stability of ['B', 'D', 'F']) {
+    it(`3 receptors and a farm 5.0 km south, class ${stability}: cells 20 m -> 50 m (noted), the others' figures within ${100 * RESOLUTION_CHANGE_LIMIT} %`, async () => {
+      const before = await figures(stability, 3, null);
+      const after = await figures(stability, 3, 0.045);
+      expect([before.spacing_m, after.spacing_m]).toEqual([20, 50]);
+      for (let r = 0; r < 3; r++) {
+        // the care-home is far off the class F plume (4e-4 ug/m3): held to the limit all the same
+        expect(before.receptors[r]).toBeGreaterThan(0);
+        expect(Math.abs(after.receptors[r] / before.receptors[r] - 1)).toBeLessThanOrEqual(RESOLUTION_CHANGE_LIMIT);
+      }
+    }, 400_000);
   }
 
   it("puts the note in the run's notes and the coarsening in summary.json's domain", async () => {
