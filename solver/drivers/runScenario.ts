@@ -77,7 +77,11 @@ export async function runScenario(scenario: Scenario, options: RunScenarioOption
     const assessed = assessRun(scenario, plan, { ...result, site: geometry.site }, geometry.receptors);
     return {
       ...assessed,
-      notes: [...assessed.notes, ...formatWarnings(warnings).map((line) => `input warning: ${line}`)],
+      notes: [
+        ...assessed.notes,
+        ...(geometry.domainCoarsening === null ? [] : [geometry.domainCoarsening.note]),
+        ...formatWarnings(warnings).map((line) => `input warning: ${line}`),
+      ],
       extraSummary: { ...assessed.extraSummary, inputWarnings: warnings },
     };
   } catch (error) {
@@ -96,7 +100,11 @@ async function dispatchByWeather(
 ): Promise<ScenarioRunResult> {
   const { solve, seriesSolvers } = options;
   const stepThreads = options.stepThreads ?? 1;
-  const domainSummary = { ...geometry.domain, derived: geometry.domainDerived };
+  const domainSummary: Record<string, unknown> = { ...geometry.domain, derived: geometry.domainDerived };
+  if (geometry.domainCoarsening !== null) {
+    const { field, id, distance_m, nearSpacing_m, maxCells } = geometry.domainCoarsening;
+    domainSummary.coarsened = { by: field, id, distance_m, nearSpacing_m, maxCells };
+  }
   const weather = scenario.weather;
   switch (weather.kind) {
     case 'steady': {

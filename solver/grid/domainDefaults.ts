@@ -85,13 +85,48 @@ const BYTES_PER_FLOAT64 = 8;
 export const GRID_MEMORY_LIMIT_bytes = 4 * 1024 ** 3;
 
 /**
+ * Most cells a derived domain may have [-]: 4 million, the server's default run limit
+ * (server/jobs/runManager.ts, DEFAULT_RUN_LIMITS.maxCellsPerRun), so a scenario without a domain runs
+ * the same from the command line and the server. About 512 MB by the memory estimate below.
+ */
+export const DERIVED_DOMAIN_MAX_CELLS = 4_000_000;
+
+/** A derived domain and, when the cell limit forced coarser cells than the sources' near field takes, why. */
+export interface DerivedDomain {
+  domain: Domain;
+  /** the cell the sources' near field takes [m] (the spacing used unless the cell limit forced coarser) */
+  nearSpacing_m: number;
+  /** null, or the plain note a run gives when a far receptor (or source) forced coarser cells */
+  coarsening: DomainCoarsening | null;
+}
+
+export interface DomainCoarsening {
+  /** the field that needs the widest domain: `receptors[i]` or `sources[i]...` */
+  field: string;
+  /** its id */
+  id: string;
+  distance_m: number;
+  nearSpacing_m: number;
+  spacing_m: number;
+  maxCells: number;
+  note: string;
+}
+
+/**
  * The domain for a scenario without one: a square centred on the site that covers every source
- * and receptor with a margin, about 200 columns a side at a round spacing, 24 stretched layers.
+ * and receptor with a margin, at the cell size the sources' near field takes, 24 stretched layers.
  *
- * - half-width = max(2 km, 1.5 x the farthest source vertex or receptor from the site), rounded up
- *   to a round figure (1, 1.5, 2, 2.5, 3, 4, 5, 6 or 8 times a power of ten);
- * - spacing = the round spacing (ROUND_SPACINGS_m) whose column count is nearest 200 (nearest in
- *   ratio; the finer one on a tie), and the half-width is then a whole number of cells;
+ * - the near box: half-width max(2 km, 1.5 x the farthest source vertex from the site), rounded up to
+ *   a round figure (1, 1.5, 2, 2.5, 3, 4, 5, 6 or 8 times a power of ten). The 2 km floor holds the
+ *   sources' near field, the nearest receptors and a small plant's footprint;
+ * - the near spacing: the round spacing (ROUND_SPACINGS_m) whose column count over the near box is
+ *   nearest 200 (nearest in ratio; the finer one on a tie). Receptors do not enter it: a receptor
+ *   inside the near box is resolved by it, one beyond it needs no finer cell (its plume is wider);
+ * - half-width = max(2 km, 1.5 x the farthest source vertex or receptor), rounded up to a round
+ *   figure and then to a whole number of cells: a far receptor adds cells at the same spacing;
+ * - only when that grid would have more than `maxCells` cells (DERIVED_DOMAIN_MAX_CELLS) is the
+ *   spacing raised, to the finest round spacing that fits, and `coarsening` names the position that
+ *   forced it and the old and new cell size (the run's notes carry it);
  * - height = 1000 m, or 1.5 x the tallest plausible effective height (stack plus its Briggs
  *   final rise at the 1 m/s calms floor) rounded up to 500 m when that is more;
  * - layers = 24.
@@ -104,10 +139,25 @@ export function deriveDomain(input: {
   sources: Source[];
   receptors: Receptor[];
   projection: LocalProjection;
+  maxCells?: number;
 }): Domain {
+  return deriveDomainWithReasons(input).domain;
+}
+
+/** deriveDomain with the near spacing and, when the cell limit forced coarser cells, the reason. */
+export function deriveDomainWithReasons(input: {
+  sources: Source[];
+  receptors: Receptor[];
+  projection: LocalProjection;
+  maxCells?: number;
+}): DerivedDomain {
   const { sources, receptors, projection } = input;
+  const maxCells = input.maxCells ?? DERIVED_DOMAIN_MAX_CELLS;
+  let farthestSource_m = 0;
   let farthest_m = 0;
-  const consider = (field: string, lon: number, lat: number): void => {
+  let farthestField = '';
+  let farthestId = '';
+  const distanceOf = (field: string, lon: number, lat: number): number => {
     if (!Number.isFinite(lon) || !Number.isFinite(lat)) {
       throw new RangeError(
         `${field}: got lon ${String(lon)}, lat ${String(lat)}; allowed: finite WGS 84 degrees`,
@@ -122,26 +172,44 @@ export function deriveDomain(input: {
           '(check the coordinates, or give a domain)',
       );
     }
-    farthest_m = Math.max(farthest_m, distance_m);
+    return distance_m;
+  };
+  const consider = (field: string, id: string, distance_m: number): void => {
+    if (distance_m > farthest_m) {
+      farthest_m = distance_m;
+      farthestField = field;
+      farthestId = id;
+    }
   };
   sources.forEach((source, index) => {
     if (source.kind === 'point') {
-      consider(`sources[${index}]`, source.lon, source.lat);
+      const distance_m = distanceOf(`sources[${index}]`, source.lon, source.lat);
+      farthestSource_m = Math.max(farthestSource_m, distance_m);
+      consider(`sources[${index}]`, source.id, distance_m);
     } else {
-      source.polygon.forEach(([lon, lat], vertex) =>
-        consider(`sources[${index}].polygon[${vertex}]`, lon, lat),
-      );
+      source.polygon.forEach(([lon, lat], vertex) => {
+        const distance_m = distanceOf(`sources[${index}].polygon[${vertex}]`, lon, lat);
+        farthestSource_m = Math.max(farthestSource_m, distance_m);
+        consider(`sources[${index}]`, source.id, distance_m);
+      });
     }
   });
   receptors.forEach((receptor, index) =>
-    consider(`receptors[${index}]`, receptor.lon, receptor.lat),
+    consider(`receptors[${index}]`, receptor.id, distanceOf(`receptors[${index}]`, receptor.lon, receptor.lat)),
   );
 
-  const requiredHalfWidth_m = Math.max(MIN_DERIVED_HALF_WIDTH_m, DERIVED_MARGIN_FACTOR * farthest_m);
-  const roundHalfWidth_m = roundUpToRoundFigure(requiredHalfWidth_m);
-  const spacing_m = roundSpacingFor(roundHalfWidth_m);
-  const halfWidth_m = Math.ceil(roundHalfWidth_m / spacing_m - 1e-9) * spacing_m;
-
+  const nearHalfWidth_m = roundUpToRoundFigure(Math.max(MIN_DERIVED_HALF_WIDTH_m, DERIVED_MARGIN_FACTOR * farthestSource_m));
+  const nearSpacing_m = roundSpacingFor(nearHalfWidth_m);
+  const roundHalfWidth_m = roundUpToRoundFigure(Math.max(MIN_DERIVED_HALF_WIDTH_m, DERIVED_MARGIN_FACTOR * farthest_m));
+  const halfWidthAt = (spacing: number): number => Math.ceil(roundHalfWidth_m / spacing - 1e-9) * spacing;
+  const cellsAt = (spacing: number): number => ((2 * halfWidthAt(spacing)) / spacing) ** 2 * DEFAULT_DOMAIN_LAYERS;
+  let spacing_m = nearSpacing_m;
+  for (const candidate of ROUND_SPACINGS_m) {
+    if (candidate < nearSpacing_m) continue;
+    spacing_m = candidate;
+    if (cellsAt(candidate) <= maxCells) break;
+  }
+  const halfWidth_m = halfWidthAt(spacing_m);
   let tallest_m = 0;
   for (const source of sources) {
     if (source.kind === 'point') tallest_m = Math.max(tallest_m, plausibleEffectiveHeight_m(source));
@@ -150,7 +218,27 @@ export function deriveDomain(input: {
     DEFAULT_DOMAIN_HEIGHT_m,
     Math.ceil((HEIGHT_MARGIN_FACTOR * tallest_m) / HEIGHT_ROUNDING_m) * HEIGHT_ROUNDING_m,
   );
-  return { halfWidth_m, spacing_m, height_m, layers: DEFAULT_DOMAIN_LAYERS };
+  const domain: Domain = { halfWidth_m, spacing_m, height_m, layers: DEFAULT_DOMAIN_LAYERS };
+  let coarsening: DomainCoarsening | null = null;
+  if (spacing_m > nearSpacing_m) {
+    const wanted = cellsAt(nearSpacing_m);
+    const columns = (2 * halfWidthAt(nearSpacing_m)) / nearSpacing_m;
+    coarsening = {
+      field: farthestField,
+      id: farthestId,
+      distance_m: farthest_m,
+      nearSpacing_m,
+      spacing_m,
+      maxCells,
+      note:
+        `derived domain: ${farthestField} ('${farthestId}', ${(farthest_m / 1000).toFixed(1)} km from the site) needs a half-width of ` +
+        `${roundHalfWidth_m} m; at the ${nearSpacing_m} m cells the sources' near field takes that is ${columns} x ${columns} x ` +
+        `${DEFAULT_DOMAIN_LAYERS} = ${wanted} cells, above the ${maxCells} a derived domain may have, so the cells are ` +
+        `${spacing_m} m instead of ${nearSpacing_m} m. The figures at the other receptors can then differ from those of a run ` +
+        'without it by more than the resolution check\'s 10 %: give a domain, or check them with plumeplan run --resolution-check',
+    };
+  }
+  return { domain, nearSpacing_m, coarsening };
 }
 
 /**

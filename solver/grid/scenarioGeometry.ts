@@ -5,7 +5,7 @@
 import type { Domain, Scenario } from '../../scenarios/format/types.ts';
 import type { PlacedReceptor, PlacedSource } from '../drivers/types.ts';
 import { placeReceptors, placeSources } from '../sources/placement.ts';
-import { checkGridMemory, deriveDomain } from './domainDefaults.ts';
+import { checkGridMemory, deriveDomainWithReasons, type DomainCoarsening } from './domainDefaults.ts';
 import { buildLocalGrid } from './localGrid.ts';
 import { createLocalProjection } from './projection.ts';
 import { placeSiteBoundary, siteColumns, type SiteColumns } from './siteBoundary.ts';
@@ -17,6 +17,8 @@ export interface ScenarioGeometry {
   domain: Domain;
   /** true when `domain` was derived from the sources and receptors */
   domainDerived: boolean;
+  /** null, or why a derived domain has coarser cells than its sources' near field takes (a far receptor and the cell limit) */
+  domainCoarsening: DomainCoarsening | null;
   grid: LocalGrid;
   sources: PlacedSource[];
   receptors: PlacedReceptor[];
@@ -36,15 +38,17 @@ export interface ScenarioGeometry {
 export function prepareScenarioGeometry(scenario: Scenario): ScenarioGeometry {
   const projection = createLocalProjection(scenario.site);
   const domainDerived = scenario.domain === undefined;
-  const domain =
-    scenario.domain ??
-    deriveDomain({ sources: scenario.sources, receptors: scenario.receptors, projection });
+  const derived = domainDerived
+    ? deriveDomainWithReasons({ sources: scenario.sources, receptors: scenario.receptors, projection })
+    : null;
+  const domain = scenario.domain ?? derived!.domain;
   checkGridMemory(domain);
   const grid = buildLocalGrid(domain, projection);
   return {
     projection,
     domain,
     domainDerived,
+    domainCoarsening: derived?.coarsening ?? null,
     grid,
     sources: placeSources(scenario.sources, grid),
     receptors: placeReceptors(scenario.receptors, grid),

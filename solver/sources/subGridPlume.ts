@@ -75,6 +75,16 @@ export const MINIMUM_HANDOVER_SPREAD_m = 100;
 export const SMALL_AREA_CELLS = 3;
 
 /**
+ * An area source is also carried below the grid, whatever the cell, when its largest extent is at most
+ * this many times the hand-over's least spread (MINIMUM_HANDOVER_SPREAD_m) [-]: sqrt(12), the width of
+ * a uniform band whose standard deviation is that spread (W / sqrt(12) = sigma). A narrower area's
+ * plume starts narrower than the grid is trusted with, so it is the sub-grid plume's at every cell size;
+ * with the cell-count rule alone the demo's 85 m fuel yard went straight into 20 m cells but below the
+ * grid at 50 m, and the houses' figures moved by 57 % in class F between the two (docs/near-field.md).
+ */
+export const SMALL_AREA_SPREADS = Math.sqrt(12);
+
+/**
  * Least half-width of the hand-over band along the wind, in cells [-]; the band is sigma_y(x_h) wide
  * when that is more. Measured (docs/near-field.md): with a band of one cell the limited-slope advection's
  * reading of the steep ramp left the figures within the band 11-13 % off at 50 m cells; with two cells
@@ -96,7 +106,7 @@ const CROSSWIND_REACH_SIGMAS = 6;
 export interface SubGridPlumeOptions {
   /** spreads in cells before hand-over, default RESOLVED_CELLS (2) */
   resolvedCells?: number;
-  /** areas up to this many cells across are carried below the grid, default SMALL_AREA_CELLS (3) */
+  /** areas up to this many cells across (or sqrt(12) x minimumSpread_m, when more) are carried below the grid, default SMALL_AREA_CELLS (3) */
   smallAreaCells?: number;
   /** smallest crosswind spread handed to the grid whatever the cell [m], default MINIMUM_HANDOVER_SPREAD_m (100) */
   minimumSpread_m?: number;
@@ -186,7 +196,12 @@ export class SubGridPlume implements NearFieldTreatment {
     if (!(this.smallAreaCells >= 0) || !Number.isFinite(this.smallAreaCells)) {
       throw new RangeError(`smallAreaCells is ${this.smallAreaCells}; allowed: a finite number of cells >= 0`);
     }
-    this.name = `SubGridPlume (hand-over at sigma_y >= max(${this.resolvedCells} cells, ${this.minimumSpread_m} m), areas up to ${this.smallAreaCells} cells)`;
+    this.name = `SubGridPlume (hand-over at sigma_y >= max(${this.resolvedCells} cells, ${this.minimumSpread_m} m), areas up to ${this.smallAreaCells} cells or ${(SMALL_AREA_SPREADS * this.minimumSpread_m).toFixed(0)} m)`;
+  }
+
+  /** Largest extent of an area carried below the grid [m]: smallAreaCells cells, or sqrt(12) least spreads when more. */
+  private smallAreaLimit_m(dx: number): number {
+    return Math.max(this.smallAreaCells * dx, SMALL_AREA_SPREADS * this.minimumSpread_m);
   }
 
   /**
@@ -263,7 +278,7 @@ export class SubGridPlume implements NearFieldTreatment {
           maxY = Math.max(maxY, y);
         }
         const extent_m = Math.max(maxX - minX, maxY - minY);
-        if (extent_m > this.smallAreaCells * dx) {
+        if (extent_m > this.smallAreaLimit_m(dx)) {
           direct.push(source);
           directHeights.push(releaseHeights_m[n]);
           handovers.push({ id: source.id, handoverDistance_m: 0, handedOverFraction: 1, transportWind_m_s: null });
@@ -448,7 +463,10 @@ export class SubGridPlume implements NearFieldTreatment {
       perCell.set(cell, (perCell.get(cell) ?? 0) + directEmission.rates_g_s[n]);
     }
     if (direct.length > 0) {
-      notes.push(`near field: area source${direct.length > 1 ? 's' : ''} ${direct.map((s) => s.id).join(', ')} larger than ${this.smallAreaCells} cells, released straight into the grid by cell overlaps`);
+      notes.push(
+        `near field: area source${direct.length > 1 ? 's' : ''} ${direct.map((s) => s.id).join(', ')} larger than ${this.smallAreaCells} cells ` +
+          `and ${this.smallAreaLimit_m(0).toFixed(0)} m, released straight into the grid by cell overlaps`,
+      );
     }
     const cells = Int32Array.from([...perCell.keys()].sort((a, b) => a - b));
     const rates = Float64Array.from(cells, (cell) => perCell.get(cell) ?? 0);

@@ -3,11 +3,13 @@ import type { AreaSource, PointSource, Receptor } from '../../../scenarios/forma
 import {
   DEFAULT_DOMAIN_HEIGHT_m,
   DEFAULT_DOMAIN_LAYERS,
+  DERIVED_DOMAIN_MAX_CELLS,
   GRID_ARRAYS_PER_CELL,
   GRID_MEMORY_LIMIT_bytes,
   ROUND_SPACINGS_m,
   checkGridMemory,
   deriveDomain,
+  deriveDomainWithReasons,
   estimateGridMemory_bytes,
   plausibleEffectiveHeight_m,
 } from '../../../solver/grid/domainDefaults.ts';
@@ -63,7 +65,16 @@ describe('deriveDomain', () => {
       expect(Number.isInteger(domain.halfWidth_m / domain.spacing_m)).toBe(true);
       const columns = (2 * domain.halfWidth_m) / domain.spacing_m;
       expect(columns).toBeGreaterThanOrEqual(140);
-      expect(columns).toBeLessThanOrEqual(290);
+      // Within the cell limit, and at the finest round spacing from the near field's on that fits it.
+      expect(columns ** 2 * domain.layers).toBeLessThanOrEqual(DERIVED_DOMAIN_MAX_CELLS);
+      const { nearSpacing_m, coarsening } = deriveDomainWithReasons({ sources, receptors, projection });
+      expect(domain.spacing_m).toBeGreaterThanOrEqual(nearSpacing_m);
+      expect(coarsening === null).toBe(domain.spacing_m === nearSpacing_m);
+      const finer = ROUND_SPACINGS_m[ROUND_SPACINGS_m.indexOf(domain.spacing_m) - 1];
+      if (domain.spacing_m > nearSpacing_m) {
+        const finerColumns = 2 * Math.ceil(domain.halfWidth_m / finer - 1e-9);
+        expect(finerColumns ** 2 * domain.layers).toBeGreaterThan(DERIVED_DOMAIN_MAX_CELLS);
+      }
       expect(domain.height_m).toBe(DEFAULT_DOMAIN_HEIGHT_m);
       expect(domain.layers).toBe(DEFAULT_DOMAIN_LAYERS);
       const grid = buildLocalGrid(domain, projection);
@@ -72,14 +83,35 @@ describe('deriveDomain', () => {
     });
   }
 
-  it('chooses round figures: 2 km at 20 m for a compact plant, 10 km at 100 m for a receptor 6 km out', () => {
+  it('chooses round figures: 2 km at 20 m for a compact plant, 10 km at 50 m for a receptor 6 km out', () => {
     expect(deriveDomain({ sources: layouts[0][1], receptors: layouts[0][2], projection })).toEqual({
       halfWidth_m: 2000, spacing_m: 20, height_m: 1000, layers: 24,
     });
-    // 1.5 x 6.0 km = 9.0 km -> 10 km; 20 km / 200 = 100 m.
+    // The stack is at the site: near box 2 km, 4 km / 200 = 20 m. The receptor: 1.5 x 6.0 km = 9.0 km -> 10 km;
+    // at 20 m that is 1000^2 x 24 = 24 M cells, at 25 m 800^2 x 24 = 15.4 M, at 50 m 400^2 x 24 = 3.84 M <= 4 M.
     expect(deriveDomain({ sources: layouts[1][1], receptors: layouts[1][2], projection })).toMatchObject({
-      halfWidth_m: 10_000, spacing_m: 100,
+      halfWidth_m: 10_000, spacing_m: 50,
     });
+  });
+
+  it('gives a far receptor more cells at the same spacing while the cell limit allows', () => {
+    // Compact plant: 2 km at 20 m. A receptor 1.9 km north (1.5 x 1.9 = 2.85 -> 3 km): 300^2 x 24 = 2.16 M cells.
+    const [, sources, receptors] = layouts[0];
+    const north = receptor('far', 5.2875, 52.1375 + 1900 / 111_250);
+    const derived = deriveDomainWithReasons({ sources, receptors: [...receptors, north], projection });
+    expect(derived.domain).toEqual({ halfWidth_m: 3000, spacing_m: 20, height_m: 1000, layers: 24 });
+    expect(derived.coarsening).toBeNull();
+  });
+
+  it('coarsens only when the cell limit forces it, and says which receptor forced it and the old and new cells', () => {
+    const derived = deriveDomainWithReasons({ sources: layouts[1][1], receptors: layouts[1][2], projection });
+    expect(derived.nearSpacing_m).toBe(20);
+    expect(derived.coarsening).toMatchObject({ field: 'receptors[0]', id: 'r', nearSpacing_m: 20, spacing_m: 50, maxCells: DERIVED_DOMAIN_MAX_CELLS });
+    expect(derived.coarsening!.note).toMatch(
+      /^derived domain: receptors\[0\] \('r', 6\.0 km from the site\).* 1000 x 1000 x 24 = 24000000 cells, above the 4000000 .*the cells are 50 m instead of 20 m/,
+    );
+    // A lower limit (a server configured for fewer cells) coarsens further: 200^2 x 24 = 0.96 M at 100 m.
+    expect(deriveDomain({ sources: layouts[1][1], receptors: layouts[1][2], projection, maxCells: 1_000_000 }).spacing_m).toBe(100);
   });
 
   it('raises the grid top above a tall buoyant stack', () => {

@@ -38,9 +38,12 @@ describe('prepareScenarioGeometry', () => {
     expect(geometry.projection.definition).toBe(
       '+proj=tmerc +lat_0=-35.0625 +lon_0=147.4125 +k=1 +x_0=0 +y_0=0 +ellps=WGS84 +units=m +no_defs',
     );
-    // The school is about 2.8 km out: 1.5 x 2.8 = 4.2 km -> 5 km half-width at 50 m.
-    expect(geometry.domain).toEqual({ halfWidth_m: 5000, spacing_m: 50, height_m: 1000, layers: 24 });
-    expect(geometry.grid.nx).toBe(200);
+    // The sources lie within 0.4 km of the site: near box 2 km at 20 m. The school is about 2.8 km out:
+    // 1.5 x 2.8 = 4.2 km -> 5 km half-width; at 20 m 500^2 x 24 = 6 M cells, above the 4 M limit, at 25 m
+    // 400^2 x 24 = 3.84 M.
+    expect(geometry.domain).toEqual({ halfWidth_m: 5000, spacing_m: 25, height_m: 1000, layers: 24 });
+    expect(geometry.grid.nx).toBe(400);
+    expect(geometry.domainCoarsening?.note).toMatch(/receptors\[0\] \('school'.* 25 m instead of 20 m/);
     expect(geometry.grid.projection).toBe(geometry.projection);
     expect(geometry.sources.map((s) => s.kind)).toEqual(['point', 'area']);
     expect(geometry.receptors).toHaveLength(1);
@@ -53,6 +56,7 @@ describe('prepareScenarioGeometry', () => {
     const domain = { halfWidth_m: 3000, spacing_m: 25, height_m: 800, layers: 20 };
     const geometry = prepareScenarioGeometry(scenario({ domain }));
     expect(geometry.domainDerived).toBe(false);
+    expect(geometry.domainCoarsening).toBeNull();
     expect(geometry.domain).toBe(domain);
     expect(geometry.grid.nx).toBe(240);
     expect(geometry.grid.zFaces_m[20]).toBe(800);

@@ -67,15 +67,19 @@ describe('SubGridPlume: where the grid takes over', () => {
     expect(totalEmission_g_s(plan.emission)).toBeCloseTo(2, 12);
   });
 
-  it('carries an area source of up to three cells and releases a larger one straight into its cells', () => {
+  it('carries an area source of up to three cells or sqrt(12) x 100 m and releases a larger one straight into its cells', () => {
     const square = (half: number): [number, number][] => [[-half, -half], [half, -half], [half, half], [-half, half], [-half, -half]];
-    const base = context();
-    const area = (id: string, half: number): PlacedSource => ({ kind: 'area', id, ring_m: square(half), area_m2: 4 * half * half, x_m: 0, y_m: 0, releaseHeight_m: 1, emission_g_s: 1, shares: rasteriseRing(square(half), base.grid) });
-    const plan = new SubGridPlume().plan({ ...base, sources: [area('small', 15), area('large', 200)], releaseHeights_m: [1, 1] });
-    expect(plan.handovers[0].handoverDistance_m).toBeGreaterThan(1000);
-    expect(plan.handovers[1].handoverDistance_m).toBe(0);
-    expect(plan.notes.join(' ')).toMatch(/area source large larger than 3 cells, released straight into the grid/);
-    expect(totalEmission_g_s(plan.emission)).toBeCloseTo(2, 12);
+    for (const spacing_m of [50, 20]) {
+      const base = context({ spacing_m });
+      const area = (id: string, half: number): PlacedSource => ({ kind: 'area', id, ring_m: square(half), area_m2: 4 * half * half, x_m: 0, y_m: 0, releaseHeight_m: 1, emission_g_s: 1, shares: rasteriseRing(square(half), base.grid) });
+      // 30 m and 160 m across are carried at both cells (160 m is 8 cells of 20 m but under 346 m); 400 m is not.
+      const plan = new SubGridPlume().plan({ ...base, sources: [area('small', 15), area('middle', 80), area('large', 200)], releaseHeights_m: [1, 1, 1] });
+      expect(plan.handovers[0].handoverDistance_m).toBeGreaterThan(1000);
+      expect(plan.handovers[1].handoverDistance_m).toBeGreaterThan(0);
+      expect(plan.handovers[2].handoverDistance_m).toBe(0);
+      expect(plan.notes.join(' ')).toMatch(/area source large larger than 3 cells and 346 m, released straight into the grid/);
+      expect(totalEmission_g_s(plan.emission)).toBeCloseTo(3, 12);
+    }
   });
 
   it('refuses options that make no sense, naming them', () => {
