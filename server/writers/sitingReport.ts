@@ -254,8 +254,10 @@ function limitsSection(result: SitingResult): ReportSection {
   const measured =
     result.forwardAgreement === null
       ? 'No forward runs were made in this siting, so its agreement with forward runs was not measured here.'
-      : `Measured in this siting: forward runs of the stack at ${result.forwardRunCount} candidate${result.forwardRunCount === 1 ? '' : 's'} agree with the map within ` +
-        `${roundSignificant(100 * result.forwardAgreement, 2)} % of the largest forward PC at the receptors.`;
+      : `Measured in this siting: forward runs of the stack at ${result.forwardRunCount} candidate${result.forwardRunCount === 1 ? '' : 's'} agree with the map ` +
+        (result.forwardAgreement === 0
+          ? 'exactly at every receptor.'
+          : `within ${roundSignificant(100 * result.forwardAgreement, 2)} % of the largest forward PC at the receptors.`);
   return {
     id: 'limits',
     heading: 'Where the map holds',

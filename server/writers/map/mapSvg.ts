@@ -664,7 +664,10 @@ export function sitingColour(k: number, n: number): string {
   return SITING_PALETTE[index];
 }
 
-/** Candidates up to this rank carry their rank on the figure; the rest are dots (a site lattice can have hundreds). */
+/**
+ * Candidates up to this rank carry their rank on the figure; the rest are dots (a site lattice can have
+ * hundreds). Where the numbered circles would overlap at the figure's scale, only rank 1 is numbered.
+ */
 export const LABELLED_CANDIDATE_RANKS = 12;
 
 /** What the siting figure draws: the map's bands and the positions, all in WGS 84 lon/lat. */
@@ -752,18 +755,21 @@ export function renderSitingMapSvg(input: SitingFigureInput): MapFigure {
   if (input.siteRing !== null) {
     out.push(`<path class="site-polygon" d="${pathOfRings([input.siteRing], project, true)}" fill="#ffffff" fill-opacity="0.12" stroke="${INK}" stroke-width="2" stroke-dasharray="6 3"/>`);
   }
+  const crowded = candidatesCrowd(input.candidates.map((candidate) => project([candidate.lon, candidate.lat])));
   // lowest-ranked drawn first, so the best candidates sit on top where they crowd
   for (const candidate of [...input.candidates].sort((a, b) => b.rank - a.rank)) {
     const [x, y] = project([candidate.lon, candidate.lat]);
-    const labelled = candidate.rank <= LABELLED_CANDIDATE_RANKS;
+    // where numbered circles would overlap, only the first rank keeps its number (the table has the rest)
+    const labelled = crowded ? candidate.rank === 1 : candidate.rank <= LABELLED_CANDIDATE_RANKS;
     out.push(
-      `<g class="candidate" data-id="${escapeXml(candidate.id)}" data-rank="${candidate.rank}">` +
+      `<g class="candidate" data-id="${escapeXml(candidate.id)}" data-rank="${candidate.rank}" data-numbered="${labelled}">` +
         `<circle cx="${num(x)}" cy="${num(y)}" r="${labelled ? 8 : 2.6}" fill="#ffffff" stroke="${INK}" stroke-width="${labelled ? 1.3 : 0.9}"/>` +
         (labelled ? `<text x="${num(x)}" y="${num(y + 3.5)}" font-size="9.5" text-anchor="middle" font-weight="bold">${candidate.rank}</text>` : '') +
         '</g>',
     );
   }
   const [bx, by] = project([input.best.lon, input.best.lat]);
+  // the best position is drawn above the candidates: it is what the figure is for
   out.push(
     `<g class="best-position" data-value-ug-m3="${input.best.value_ug_m3}">` +
       `<path d="${star(bx, by, 13, 5.5)}" fill="#f2c14e" stroke="${INK}" stroke-width="1.6"/></g>`,
@@ -782,7 +788,7 @@ export function renderSitingMapSvg(input: SitingFigureInput): MapFigure {
   out.push(...tickLabels(extent, px, crs));
   out.push(...scaleBar(extent, scale, converter, grid));
   out.push(...northArrow(extent, converter));
-  out.push(...sitingLegend(input));
+  out.push(...sitingLegend(input, crowded));
   out.push(...cautionBlock(crs, input.provenance));
   out.push('</svg>');
   return { svg: `${out.join('\n')}\n`, width: MAP_WIDTH, height: MAP_HEIGHT, crs, extent };
@@ -799,7 +805,18 @@ function star(x: number, y: number, r: number, inner: number): string {
   return `${corners.join('')}Z`;
 }
 
-function sitingLegend(input: SitingFigureInput): string[] {
+/** Whether two candidates' numbered circles (radius 8 px) would overlap at the figure's scale. */
+function candidatesCrowd(points: [number, number][]): boolean {
+  const clearance = 17;
+  for (let a = 0; a < points.length; a += 1) {
+    for (let b = a + 1; b < points.length; b += 1) {
+      if (Math.hypot(points[a][0] - points[b][0], points[a][1] - points[b][1]) < clearance) return true;
+    }
+  }
+  return false;
+}
+
+function sitingLegend(input: SitingFigureInput, crowded: boolean): string[] {
   const out = [`<g class="legend siting-legend" transform="translate(${PANEL_LEFT} ${FRAME.top})">`];
   let y = 8;
   for (const line of wrapText(input.legendHeading, 270, 13)) {
@@ -841,7 +858,11 @@ function sitingLegend(input: SitingFigureInput): string[] {
       `<g transform="translate(15 Y0)"><circle r="8" fill="#ffffff" stroke="${INK}" stroke-width="1.3"/><text y="3.5" font-size="9.5" text-anchor="middle" font-weight="bold">1</text></g>`,
       `candidate and its rank (1 = lowest)`,
     );
-    if (input.candidates.some((candidate) => candidate.rank > LABELLED_CANDIDATE_RANKS)) {
+    if (crowded) {
+      symbol(`<circle cx="15" cy="Y0" r="2.6" fill="#ffffff" stroke="${INK}" stroke-width="0.9"/>`, 'other candidates (too close');
+      y += 14;
+      out.push(`<text x="40" y="${y}" font-size="12">to number: ranks in the table)</text>`);
+    } else if (input.candidates.some((candidate) => candidate.rank > LABELLED_CANDIDATE_RANKS)) {
       symbol(`<circle cx="15" cy="Y0" r="2.6" fill="#ffffff" stroke="${INK}" stroke-width="0.9"/>`, `candidate ranked below ${LABELLED_CANDIDATE_RANKS}`);
     }
   }

@@ -20,7 +20,7 @@ import { runSiting, type SitingResult } from '../../../solver/siting/runSiting.t
 import { SCREENING_CAUTION } from '../../../server/writers/caution.ts';
 import { LABELLED_CANDIDATE_RANKS, SITING_PALETTE } from '../../../server/writers/map/mapSvg.ts';
 import { buildSitingFiles, sitingMapBands } from '../../../server/writers/siting.ts';
-import { buildSitingReportFiles, SITING_MAP_PNG_FILE, SITING_MAP_SVG_FILE, SITING_REPORT_HTML_FILE, SITING_REPORT_PDF_FILE } from '../../../server/writers/sitingReport.ts';
+import { buildSitingReportFiles, buildSitingReportModel, SITING_MAP_PNG_FILE, SITING_MAP_SVG_FILE, SITING_REPORT_HTML_FILE, SITING_REPORT_PDF_FILE } from '../../../server/writers/sitingReport.ts';
 
 const site = { lat: 53.91, lon: -1.72, landUse: 'rural' as const };
 const projection = createLocalProjection(site);
@@ -72,10 +72,12 @@ describe('siting figure (siting-map.svg, siting-map.png)', () => {
     for (const [, fill] of bands) expect(SITING_PALETTE as readonly string[]).toContain(fill);
     expect(svg.match(/class="site-polygon"/g)).toHaveLength(1);
     for (const id of ['houses', 'nursery']) expect(svg).toContain(`<g class="receptor" data-id="${id}">`);
-    const candidates = [...svg.matchAll(/<g class="candidate" data-id="([^"]+)" data-rank="(\d+)">(.*?)<\/g>/g)];
+    const candidates = [...svg.matchAll(/<g class="candidate" data-id="([^"]+)" data-rank="(\d+)" data-numbered="(true|false)">(.*?)<\/g>/g)];
     expect(candidates).toHaveLength(result.candidates.length);
     expect(result.candidates.length).toBeGreaterThan(LABELLED_CANDIDATE_RANKS); // the lattice: 16 positions and the gate
-    for (const [, , rank, body] of candidates) {
+    // 100 m lattice on a frame about 1.1 km wide: circles 50 px apart, so none crowd and the first 12 are numbered
+    for (const [, , rank, numbered, body] of candidates) {
+      expect(numbered).toBe(String(Number(rank) <= LABELLED_CANDIDATE_RANKS));
       if (Number(rank) <= LABELLED_CANDIDATE_RANKS) expect(body).toContain(`>${rank}</text>`);
       else expect(body).not.toContain('<text');
     }
@@ -83,6 +85,16 @@ describe('siting figure (siting-map.svg, siting-map.png)', () => {
     for (const part of ['class="scale-bar"', 'class="north-arrow"', 'class="ticks"', 'class="graticule"', 'class="grid-edge"', 'class="caution"', 'class="provenance"']) {
       expect(svg, part).toContain(part);
     }
+  });
+
+  it('numbers only rank 1 where the numbered circles would overlap (candidates 10 m apart on a frame of about 1 km)', async () => {
+    const close = await runSiting(scenario, {
+      candidates: [0, 10, 20].map((x, n) => ({ id: `c${n}`, lon: lonLat(x - 150, 0)[0], lat: lonLat(x - 150, 0)[1] })),
+    });
+    const { figure } = buildSitingReportModel({ result: close, bands: sitingMapBands(close), scenario });
+    const numbered = [...figure.svg.matchAll(/data-rank="(\d+)" data-numbered="(true|false)"/g)].map((match) => [Number(match[1]), match[2]]);
+    expect(numbered.sort()).toEqual([[1, 'true'], [2, 'false'], [3, 'false']]);
+    expect(figure.svg).toContain('ranks in the table)');
   });
 
   it('marks the best position inside the drawn site polygon', () => {
