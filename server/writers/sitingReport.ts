@@ -13,6 +13,7 @@
  * adds them to the siting folder, so the CLI and the server's site job write the same files.
  */
 import type { Scenario } from '../../scenarios/format/types.ts';
+import { isInsideRing } from '../../solver/grid/siteBoundary.ts';
 import type { SitingResult } from '../../solver/siting/runSiting.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import type { FootprintCollection } from './footprint.ts';
@@ -236,6 +237,7 @@ function bestSection(result: SitingResult): ReportSection {
     paragraphs: [
       `Lowest ${result.map.receptorWeights === null ? 'highest receptor PC' : 'weighted sum'} within the ${best.within}: ${fig(best.combined_ug_m3)} µg/m³ at ` +
         `lat ${best.lat.toFixed(6)}, lon ${best.lon.toFixed(6)} (${offsetWords(best.x_m, best.y_m)}); found at ${from}. It is marked with a star on the siting map.`,
+      ...lowerOutsideWords(result),
     ],
     tables: [
       {
@@ -248,6 +250,19 @@ function bestSection(result: SitingResult): ReportSection {
       },
     ],
   };
+}
+
+/** Candidates with a lower value than the best position lie outside the site polygon (it was sought inside); say which. */
+function lowerOutsideWords(result: SitingResult): string[] {
+  const ring = result.siteRing_m;
+  if (ring === null) return [];
+  const outside = result.candidates.filter((candidate) => candidate.combined_ug_m3 < result.best.combined_ug_m3 && !isInsideRing(ring, candidate.x_m, candidate.y_m));
+  if (outside.length === 0) return [];
+  const names = outside.slice(0, 5).map((candidate) => candidate.id).join(', ');
+  return [
+    `${outside.length === 1 ? 'Candidate' : 'Candidates'} ${names}${outside.length > 5 ? ` and ${outside.length - 5} more` : ''} ` +
+      `${outside.length === 1 ? 'has' : 'have'} a lower value but ${outside.length === 1 ? 'lies' : 'lie'} outside the site polygon, where the best position was not sought.`,
+  ];
 }
 
 function limitsSection(result: SitingResult): ReportSection {

@@ -176,6 +176,16 @@ describe('siting report (siting-report.html, siting-report.pdf)', () => {
     expect(html).toContain('class="siting-band"');
   });
 
+  it('says when a candidate outside the site polygon has a lower value than the best position sought inside it', async () => {
+    // 950 m east, 800 m south: outside the 400 m square; the wind from 240 deg carries its plume north-east,
+    // well clear of both receptors (north-west of it), so its PC there is far below any position on the site
+    const ring = [lonLat(-200, -200), lonLat(200, -200), lonLat(200, 200), lonLat(-200, 200), lonLat(-200, -200)];
+    const away = await runSiting(scenario, { sitePolygon: ring, spacing_m: 200, candidates: [{ id: 'far-east', lon: lonLat(950, -800)[0], lat: lonLat(950, -800)[1] }] });
+    const { report } = buildSitingReportModel({ result: away, bands: sitingMapBands(away), scenario });
+    const best = report.sections.find((section) => section.id === 'best');
+    expect(best?.paragraphs.join(' ')).toContain('Candidate far-east has a lower value but lies outside the site polygon, where the best position was not sought.');
+  });
+
   it('buildSitingFiles adds them after the rasters and names them in siting.json', async () => {
     const all = await buildSitingFiles(result, { site, scenario, outputs: 'quick' });
     const names = all.map(([name]) => name);
