@@ -326,9 +326,9 @@ function parseCrs(text: string): ExportCrs {
 }
 
 /** The command as typed, for the reproducibility block: arguments quoted where the shell would need it. */
-export function commandLine(argv: string[]): string {
+export function commandLine(argv: string[], subcommand = 'run'): string {
   const quote = (argument: string): string => (/^[\w@%+=:,./-]+$/.test(argument) ? argument : `'${argument.replaceAll("'", "'\\''")}'`);
-  return ['plumeplan', 'run', ...argv.map(quote)].join(' ');
+  return ['plumeplan', subcommand, ...argv.map(quote)].join(' ');
 }
 
 /** Whether a run makes many steady solves (a pool of worker threads takes them). */

@@ -1,7 +1,8 @@
 /**
  * `plumeplan site SCENARIO --out DIR [...]`: where on the site may the stack go? Builds the siting map
  * (one adjoint solve per sensitive receptor in grid mode, direct evaluation in Gaussian mode), ranks the
- * candidate positions and writes siting.json, candidates.csv, siting-map.tif and siting.geojson.
+ * candidate positions and writes siting.json, candidates.csv, siting-map.tif, siting.geojson and the
+ * siting figure and report (siting-map.svg/.png, siting-report.html/.pdf; --quick leaves out the PNG and PDF).
  *
  * Loading, progress and exit codes as `run`: 0 done; 2 invalid input (usage, scenario issues, candidates
  * or polygon that cannot be used), naming the option or field; 1 internal failure or a capability this
@@ -23,7 +24,7 @@ import { writeSitingFolder } from '../writers/siting.ts';
 import { parseCommandLine, parseLevels, parseMode, UsageError } from './args.ts';
 import type { CommandIO } from './io.ts';
 import { createProgressReporter } from './progress.ts';
-import { INTERRUPTED_EXIT_CODE } from './run.ts';
+import { commandLine, INTERRUPTED_EXIT_CODE } from './run.ts';
 import { runSitingInWorker } from './siteInWorker.ts';
 
 export const SITE_USAGE = `usage: plumeplan site SCENARIO --out DIR [options]
@@ -36,6 +37,10 @@ Writes into DIR (created if missing):
   siting-map.tif   the map as a GeoTIFF in the site's UTM zone (ug/m3; nodata off the site),
                    and siting-map-<receptor>.tif for each receptor (up to 5 receptors)
   siting.geojson   the map's isopleth bands, best position, candidates, receptors, site polygon
+  siting-map.svg   the siting figure (map bands, site polygon, receptors, ranked candidates, best
+  siting-map.png   position, scale bar, north arrow, caution); the PNG at 2000 x 1580 pixels
+  siting-report.html  the siting report: caution, question, figure, ranked candidates, best position,
+  siting-report.pdf   limits and measured agreement, reproducibility (the PDF on A4)
 
 Options:
   -o, --out DIR          folder for the results (required)
@@ -58,6 +63,7 @@ Options:
                          map); default: every candidate, at most 50 in grid mode
       --footprints       also write footprint-<id>.geojson for each forward-run candidate
   -l, --levels LIST      the map's isopleth levels in ug/m3, increasing; default: round numbers
+      --quick            leave out the slow rendered files (siting-map.png, siting-report.pdf)
   -h, --help             show this help
 
 The map assumes flat terrain, the same stack at every position and effective heights that do not depend
@@ -80,6 +86,7 @@ interface SiteArguments {
   forwardRuns?: number;
   footprints: boolean;
   levels_ug_m3?: number[];
+  quick: boolean;
 }
 
 export interface SiteCommandOptions {
@@ -148,7 +155,14 @@ export async function siteCommand(argv: string[], io: CommandIO, options: SiteCo
     const result =
       options.solve === undefined ? await runSitingInWorker(scenario, sitingOptions(request, undefined, control)) : await computeSiting(scenario, request, options.solve, control);
     progress.update(1, 'writing the siting folder');
-    const files = await writeSitingFolder(args.outDirectory, result, { levels_ug_m3: args.levels_ug_m3, site: scenario.site, signal: interrupt.signal });
+    const files = await writeSitingFolder(args.outDirectory, result, {
+      levels_ug_m3: args.levels_ug_m3,
+      site: scenario.site,
+      scenario,
+      command: commandLine(argv, 'site'),
+      outputs: args.quick ? 'quick' : 'full',
+      signal: interrupt.signal,
+    });
     progress.finish();
     io.stdout.write(describeSiting(result, args.outDirectory, files));
     return 0;
@@ -175,6 +189,7 @@ function readSiteArguments(argv: string[]): SiteArguments | 'help' {
     'forward-runs': { type: 'string' },
     footprints: { type: 'boolean' },
     levels: { type: 'string', short: 'l' },
+    quick: { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
   });
   if (options.help === true) return 'help';
@@ -221,6 +236,7 @@ function readSiteArguments(argv: string[]): SiteArguments | 'help' {
     forwardRuns,
     footprints: options.footprints === true,
     levels_ug_m3: text('levels') === undefined ? undefined : parseLevels(text('levels') as string),
+    quick: options.quick === true,
   };
 }
 

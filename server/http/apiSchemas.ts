@@ -135,6 +135,7 @@ export const siteRequestSchema = z.strictObject({
   forwardRuns: z.number().int().min(0).max(500).optional().describe('forward runs of the best-ranked candidates; default: every candidate, at most 50 in grid mode'),
   footprints: z.boolean().optional().describe('also store footprint-ID.geojson for each forward-run candidate'),
   levels_ug_m3: levelsField.describe("the map's isopleth levels [ug/m3]; default: round numbers"),
+  quick: z.boolean().optional().describe('leave out the slow rendered files, siting-map.png and siting-report.pdf (plumeplan site --quick); default false'),
 });
 
 /** Every body POST /api/runs takes, by kind. */

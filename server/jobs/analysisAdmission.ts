@@ -116,6 +116,7 @@ export interface SiteOptionsInput {
   forwardRuns?: number;
   footprints?: boolean;
   levels_ug_m3?: number[];
+  quick?: boolean;
 }
 
 /** @throws RunRefusedError naming the option */

@@ -213,8 +213,16 @@ async function computeStackHeightRun(job: RunJob, control: RunControl): Promise<
 
 async function computeSiteRun(job: RunJob, control: RunControl): Promise<ResultFileContent[]> {
   const scenario = storedScenario(job.scenario);
-  const request = job.options as SiteRequest & { levels_ug_m3?: number[] };
+  const request = job.options as SiteRequest & { levels_ug_m3?: number[]; quick?: boolean };
   const result = await computeSiting(scenario, request, undefined, control);
   control.onProgress?.(1, 'writing the siting files');
-  return asResultFiles(await buildSitingFiles(result, { levels_ug_m3: request.levels_ug_m3, site: scenario.site }));
+  return asResultFiles(
+    await buildSitingFiles(result, {
+      levels_ug_m3: request.levels_ug_m3,
+      site: scenario.site,
+      scenario,
+      command: 'POST /api/runs {"kind": "site"}',
+      outputs: request.quick === true ? 'quick' : 'full',
+    }),
+  );
 }

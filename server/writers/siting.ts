@@ -6,17 +6,19 @@
  * nearest-cell resampling so every pixel is a value the map holds, nodata off the site and outside the
  * grid, the caution in the description) and as GeoJSON (siting.geojson: the map's isopleth bands, drawn by footprint.ts's contouring, the best
  * position, the candidates, the receptors and the site polygon), and on request each forward-run
- * candidate's ground-level footprint.
+ * candidate's ground-level footprint; the siting figure and report (./sitingReport.ts).
  */
 import { mkdir, rm, stat, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Feature, Geometry } from 'geojson';
+import type { Scenario } from '../../scenarios/format/types.ts';
 import type { RankedCandidate, SitingResult } from '../../solver/siting/runSiting.ts';
 import { SCREENING_CAUTION } from './caution.ts';
-import { defaultFootprintLevels, footprintBands } from './footprint.ts';
+import { defaultFootprintLevels, footprintBands, type FootprintCollection } from './footprint.ts';
 import { GEOTIFF_NODATA, writeGroundGeoTiff } from './groundGeoTiff.ts';
 import { CONCENTRATION_SIGNIFICANT_FIGURES, LON_LAT_DECIMALS, roundDecimals, roundSignificant } from './rounding.ts';
 import { csvField } from './receptorsCsv.ts';
+import { buildSitingReportFiles, SITING_MAP_PNG_FILE, SITING_MAP_SVG_FILE, SITING_REPORT_HTML_FILE, SITING_REPORT_PDF_FILE } from './sitingReport.ts';
 import { formatFootprint } from './writeResultFolder.ts';
 
 export const SITING_JSON_FILE = 'siting.json';
@@ -164,6 +166,12 @@ function point(lonLat: [number, number], properties: Record<string, unknown>): F
   return { type: 'Feature', geometry: { type: 'Point', coordinates: [degrees(lonLat[0]), degrees(lonLat[1])] }, properties };
 }
 
+/** The combined map's isopleth bands (siting.geojson's and the siting figure's), at the levels given or round 1-2-5 levels. */
+export function sitingMapBands(result: SitingResult, levels_ug_m3?: number[]): FootprintCollection {
+  const levels = levels_ug_m3 ?? defaultFootprintLevels(result.map.combined_ug_m3);
+  return footprintBands(result.map.combined_ug_m3, result.grid, { levels_ug_m3: levels, scenarioName: result.scenarioName, statistic: result.statistic });
+}
+
 /**
  * siting.geojson: RFC 7946 FeatureCollection in WGS 84 lon/lat. Features carry `kind`: "map band" (an
  * isopleth band of the combined map, lower_ug_m3 included, upper_ug_m3 excluded or null at the top),
@@ -173,8 +181,7 @@ function point(lonLat: [number, number], properties: Record<string, unknown>): F
  */
 export function sitingGeoJson(result: SitingResult, levels_ug_m3?: number[]): Record<string, unknown> {
   const { grid } = result;
-  const levels = levels_ug_m3 ?? defaultFootprintLevels(result.map.combined_ug_m3);
-  const bands = footprintBands(result.map.combined_ug_m3, grid, { levels_ug_m3: levels, scenarioName: result.scenarioName, statistic: result.statistic });
+  const bands = sitingMapBands(result, levels_ug_m3);
   const features: Feature<Geometry, Record<string, unknown>>[] = bands.features.map((band) => ({ ...band, properties: { kind: 'map band', ...band.properties } }));
   const toLonLat = (x: number, y: number): [number, number] => grid.projection.toLonLat(x, y);
   if (result.siteRing_m !== null) {
@@ -208,13 +215,23 @@ export interface SitingFolderOptions {
   levels_ug_m3?: number[];
   /** site latitude and longitude (the local projection's origin; the rasters' UTM zone is the grid's site) */
   site: { lat: number; lon: number };
+  /** the scenario as sited: the report's checksum, the figure's UTM zone */
+  scenario: Scenario;
+  /** the command as typed, for the report's reproducibility block; default "plumeplan site SCENARIO" */
+  command?: string;
+  /** the siting's date in the report and figure; default now */
+  runDate?: Date;
+  /** 'quick' leaves out the rendered figure and report (siting-map.png, siting-report.pdf), as plumeplan run --quick does */
+  outputs?: 'full' | 'quick';
   /** when it aborts during the writing, the files written so far are removed and an AbortError thrown */
   signal?: AbortSignal;
 }
 
 /**
  * Build the siting folder's files in memory: siting.json, candidates.csv, siting-map.tif, siting.geojson,
- * a siting-map-<receptor>.tif per receptor (up to MAX_RECEPTOR_RASTERS) and a footprint-<id>.geojson for
+ * a siting-map-<receptor>.tif per receptor (up to MAX_RECEPTOR_RASTERS), the figure and report of
+ * ./sitingReport.ts (siting-map.svg and siting-report.html; with full outputs also siting-map.png and
+ * siting-report.pdf) and a footprint-<id>.geojson for
  * each candidate that kept its ground-level field. What `writeSitingFolder` writes and what the server
  * stores for a site job.
  *
@@ -240,19 +257,37 @@ export async function buildSitingFiles(result: SitingResult, options: SitingFold
     if (file !== undefined) receptorTiffs.push([file, await raster(result.map.perReceptor_ug_m3[r], `PC at ${receptor.id}`)]);
   }
   const geojson = sitingGeoJson(result, options.levels_ug_m3);
+  const reportFiles = await buildSitingReportFiles({
+    result,
+    bands: sitingMapBands(result, options.levels_ug_m3),
+    scenario: options.scenario,
+    command: options.command,
+    runDate: options.runDate,
+    outputs: options.outputs,
+  });
   const footprints: [string, string][] = [];
   for (const candidate of result.candidates) {
     if (candidate.groundLevel_ug_m3 === undefined) continue;
     const collection = footprintBands(candidate.groundLevel_ug_m3, result.grid, { scenarioName: `${result.scenarioName}: stack at candidate ${candidate.id}`, statistic: result.statistic });
     footprints.push([`footprint-${candidate.id.replace(/[^\w.-]/g, '_')}.geojson`, formatFootprint(collection)]);
   }
-  const files: Record<string, string> = { geotiff: SITING_MAP_FILE, geojson: SITING_GEOJSON_FILE, candidates: CANDIDATES_CSV_FILE };
+  const full = (options.outputs ?? 'full') === 'full';
+  const files: Record<string, string> = {
+    geotiff: SITING_MAP_FILE,
+    geojson: SITING_GEOJSON_FILE,
+    candidates: CANDIDATES_CSV_FILE,
+    figure: SITING_MAP_SVG_FILE,
+    ...(full ? { figurePng: SITING_MAP_PNG_FILE } : {}),
+    report: SITING_REPORT_HTML_FILE,
+    ...(full ? { reportPdf: SITING_REPORT_PDF_FILE } : {}),
+  };
   return [
     [SITING_JSON_FILE, `${JSON.stringify(sitingJson(result, files), null, 2)}\n`],
     [CANDIDATES_CSV_FILE, candidatesCsv(result)],
     [SITING_MAP_FILE, tiff],
     [SITING_GEOJSON_FILE, `${JSON.stringify(geojson)}\n`],
     ...receptorTiffs,
+    ...reportFiles,
     ...footprints,
   ];
 }

@@ -14,6 +14,7 @@
 import type { Feature, FeatureCollection, Geometry, Position } from 'geojson';
 import type { Scenario } from '../../../scenarios/format/types.ts';
 import type { ScenarioRunResult } from '../../../solver/drivers/types.ts';
+import type { LocalGrid } from '../../../solver/grid/types.ts';
 import { SCREENING_CAUTION } from '../caution.ts';
 import { lonLatConverter, resolveCrs, siteUtmCrs, type CrsRequest, type ExportCrs } from '../crs.ts';
 import { FIGURE_FONT_FAMILY } from '../fonts/fonts.ts';
@@ -148,7 +149,7 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
   out.push(...(difference !== undefined ? differencePaths(difference.collection, project) : bandPaths(footprint, project)));
   out.push(...graticule(extent, px));
   for (const layer of options.contextLayers ?? []) out.push(...contextPaths(layer, project));
-  out.push(...gridOutline(result, toCrs, px));
+  out.push(...gridOutline(result.grid, toCrs, px));
   out.push(...siteBoundaryPath(scenario, project));
   out.push(...areaSourcePaths(scenario, project));
   out.push(...pointSourceSymbols(scenario, project));
@@ -157,7 +158,7 @@ export function renderMapSvg(scenario: Scenario, result: ScenarioRunResult, opti
   out.push('</g>');
   out.push(`<rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.size}" height="${FRAME.size}" fill="none" stroke="${INK}" stroke-width="1.2"/>`);
   out.push(...tickLabels(extent, px, crs));
-  out.push(...scaleBar(extent, scale, converter, result));
+  out.push(...scaleBar(extent, scale, converter, result.grid));
   out.push(...northArrow(extent, converter));
   const legendWords = { pollutant, statisticWords, weatherWords, height_m, contextLayers: options.contextLayers ?? [] };
   out.push(...(difference !== undefined ? differenceLegend(difference, scenario, legendWords) : legend(footprint, scenario, result, legendWords)));
@@ -326,8 +327,7 @@ function contextPaths(layer: ContextLayer, project: (p: Position) => [number, nu
 }
 
 /** The edge of the modelled grid, where it falls inside the frame. */
-function gridOutline(result: ScenarioRunResult, toCrs: (lon: number, lat: number) => [number, number], px: (p: [number, number]) => [number, number]): string[] {
-  const grid = result.grid;
+function gridOutline(grid: LocalGrid, toCrs: (lon: number, lat: number) => [number, number], px: (p: [number, number]) => [number, number]): string[] {
   const xEast = grid.xWest_m + grid.nx * grid.spacing_m;
   const yNorth = grid.ySouth_m + grid.ny * grid.spacing_m;
   const ring: [number, number][] = [];
@@ -411,14 +411,14 @@ function scaleBar(
   extent: [number, number, number, number],
   scale: number,
   converter: ReturnType<typeof lonLatConverter>,
-  result: ScenarioRunResult,
+  grid: LocalGrid,
 ): string[] {
   const [west, south, east, north] = extent;
   const cx = (west + east) / 2;
   const cy = (south + north) / 2;
   const unit = (east - west) / 100;
-  const a = result.grid.projection.toLocal(...converter.inverse([cx, cy]));
-  const b = result.grid.projection.toLocal(...converter.inverse([cx + unit, cy]));
+  const a = grid.projection.toLocal(...converter.inverse([cx, cy]));
+  const b = grid.projection.toLocal(...converter.inverse([cx + unit, cy]));
   const metresPerUnit = Math.hypot(b[0] - a[0], b[1] - a[1]) / unit;
   const pxPerMetre = scale / metresPerUnit;
   const length_m = roundStep((FRAME.size * 0.3) / pxPerMetre, 1);
@@ -647,6 +647,230 @@ function differenceLegend(
   for (const layer of words.contextLayers) {
     symbol(`<line x1="2" y1="Y0" x2="28" y2="Y0" stroke="${CONTEXT_COLOUR}" stroke-width="1"/>`, truncate(layer.name, 30));
   }
+  out.push('</g>');
+  return out;
+}
+
+/**
+ * The siting figure's sequential scale (plumeplan's own, distinct from the concentration bands): from pale
+ * mist for the lowest PC at the receptors (where the stack may go) to deep ink-violet for the highest.
+ */
+export const SITING_PALETTE = ['#eef3e6', '#cfe2c8', '#a5cdb6', '#77b0a8', '#538b98', '#415f85', '#3a3566'] as const;
+
+/** Fill of siting band k of n: spread over the siting palette, the top band always the darkest. */
+export function sitingColour(k: number, n: number): string {
+  if (n <= 1) return SITING_PALETTE[SITING_PALETTE.length - 1];
+  const index = n >= SITING_PALETTE.length ? Math.round((k * (SITING_PALETTE.length - 1)) / (n - 1)) : SITING_PALETTE.length - n + k;
+  return SITING_PALETTE[index];
+}
+
+/**
+ * Candidates up to this rank carry their rank on the figure; the rest are dots (a site lattice can have
+ * hundreds). Where the numbered circles would overlap at the figure's scale, only rank 1 is numbered.
+ */
+export const LABELLED_CANDIDATE_RANKS = 12;
+
+/** What the siting figure draws: the map's bands and the positions, all in WGS 84 lon/lat. */
+export interface SitingFigureInput {
+  /** the map's grid (the frame stays inside it; the scale bar measures through its projection) */
+  grid: LocalGrid;
+  /** the site's position: the figure is drawn in its WGS 84 UTM zone unless `crs` names another */
+  site: { lat: number; lon: number };
+  crs?: CrsRequest;
+  /** the map's isopleth bands (siting.geojson's) */
+  bands: FootprintCollection;
+  /** the site polygon's ring, or null when the whole domain was searched */
+  siteRing: [number, number][] | null;
+  receptors: { id: string; lon: number; lat: number }[];
+  candidates: { rank: number; id: string; lon: number; lat: number }[];
+  best: { lon: number; lat: number; value_ug_m3: number; within: string };
+  title: string;
+  subtitle: string;
+  /** the legend's heading (what a value is) and the lines under it (units, statistic, weather) */
+  legendHeading: string;
+  legendLines: string[];
+  provenance?: RunProvenance;
+}
+
+/**
+ * Draw the siting figure: the siting map's bands on the sequential siting scale, the site polygon, the
+ * sensitive receptors, the candidates with their rank, the best position, grid coordinates, scale bar,
+ * north arrow, a legend and the caution line.
+ *
+ * @returns the SVG text, its size, its CRS and the frame's extent
+ * @example const figure = renderSitingMapSvg({ grid, site, bands, siteRing: null, receptors, candidates, best, ... });
+ */
+export function renderSitingMapSvg(input: SitingFigureInput): MapFigure {
+  const crs = input.crs === undefined ? siteUtmCrs(input.site) : resolveCrs(input.crs);
+  const converter = lonLatConverter(crs);
+  const toCrs = (lon: number, lat: number): [number, number] => converter.forward([lon, lat]);
+  const grid = input.grid;
+  const gridBox = boxOf(
+    [
+      [grid.xWest_m, grid.ySouth_m],
+      [grid.xWest_m + grid.nx * grid.spacing_m, grid.ySouth_m],
+      [grid.xWest_m, grid.ySouth_m + grid.ny * grid.spacing_m],
+      [grid.xWest_m + grid.nx * grid.spacing_m, grid.ySouth_m + grid.ny * grid.spacing_m],
+    ].map(([x, y]) => toCrs(...grid.projection.toLonLat(x, y))),
+  );
+  // The frame holds the positions that matter (site, receptors, candidates, best) with a wide margin, so
+  // the bands around them read; the map covers the whole grid, the frame shows where the question is.
+  const points: [number, number][] = [
+    ...(input.siteRing ?? []).map(([lon, lat]) => toCrs(lon, lat)),
+    ...input.receptors.map((receptor) => toCrs(receptor.lon, receptor.lat)),
+    ...input.candidates.map((candidate) => toCrs(candidate.lon, candidate.lat)),
+    toCrs(input.best.lon, input.best.lat),
+  ];
+  const box = boxOf(points);
+  const span = Math.max(box[2] - box[0], box[3] - box[1], 10 * grid.spacing_m);
+  const margin = 0.2 * span;
+  const extent = square([box[0] - margin, box[1] - margin, box[2] + margin, box[3] + margin], gridBox);
+  const [west, , east, north] = extent;
+  const scale = FRAME.size / (east - west);
+  const px = ([X, Y]: [number, number]): [number, number] => [FRAME.left + (X - west) * scale, FRAME.top + (north - Y) * scale];
+  const project = (position: Position): [number, number] => px(toCrs(position[0], position[1]));
+
+  const out: string[] = [
+    `<svg xmlns="http://www.w3.org/2000/svg" width="${MAP_WIDTH}" height="${MAP_HEIGHT}" viewBox="0 0 ${MAP_WIDTH} ${MAP_HEIGHT}" ` +
+      `font-family="${FIGURE_FONT_FAMILY}" font-size="12" fill="${INK}">`,
+    `<title>${escapeXml(`${input.title}: ${input.subtitle}`)}</title>`,
+    `<desc id="caution">${escapeXml(SCREENING_CAUTION)}</desc>`,
+    `<rect width="${MAP_WIDTH}" height="${MAP_HEIGHT}" fill="#ffffff"/>`,
+    `<text x="${FRAME.left}" y="32" font-size="19" font-weight="bold">${escapeXml(truncate(input.title, 80))}</text>`,
+    `<text x="${FRAME.left}" y="54" font-size="12.5" fill="#5a524b">${escapeXml(truncate(input.subtitle, 120))}</text>`,
+    `<defs><clipPath id="frame-clip"><rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.size}" height="${FRAME.size}"/></clipPath></defs>`,
+    `<rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.size}" height="${FRAME.size}" fill="${PAPER}"/>`,
+    '<g clip-path="url(#frame-clip)">',
+  ];
+  const levels = input.bands.properties.levels_ug_m3;
+  for (const feature of input.bands.features) {
+    const k = levels.indexOf(feature.properties.lower_ug_m3);
+    out.push(
+      `<path class="siting-band" data-lower-ug-m3="${feature.properties.lower_ug_m3}" data-upper-ug-m3="${feature.properties.upper_ug_m3 ?? ''}" ` +
+        `d="${pathOfRings(ringsOf(feature.geometry), project, true)}" fill="${sitingColour(k, levels.length)}" fill-rule="evenodd" stroke="#4f5b66" stroke-width="0.5" stroke-opacity="0.5"/>`,
+    );
+  }
+  out.push(...graticule(extent, px));
+  out.push(...gridOutline(grid, toCrs, px));
+  if (input.siteRing !== null) {
+    out.push(`<path class="site-polygon" d="${pathOfRings([input.siteRing], project, true)}" fill="#ffffff" fill-opacity="0.12" stroke="${INK}" stroke-width="2" stroke-dasharray="6 3"/>`);
+  }
+  const crowded = candidatesCrowd(input.candidates.map((candidate) => project([candidate.lon, candidate.lat])));
+  // lowest-ranked drawn first, so the best candidates sit on top where they crowd
+  for (const candidate of [...input.candidates].sort((a, b) => b.rank - a.rank)) {
+    const [x, y] = project([candidate.lon, candidate.lat]);
+    // where numbered circles would overlap, only the first rank keeps its number (the table has the rest)
+    const labelled = crowded ? candidate.rank === 1 : candidate.rank <= LABELLED_CANDIDATE_RANKS;
+    out.push(
+      `<g class="candidate" data-id="${escapeXml(candidate.id)}" data-rank="${candidate.rank}" data-numbered="${labelled}">` +
+        `<circle cx="${num(x)}" cy="${num(y)}" r="${labelled ? 8 : 2.6}" fill="#ffffff" stroke="${INK}" stroke-width="${labelled ? 1.3 : 0.9}"/>` +
+        (labelled ? `<text x="${num(x)}" y="${num(y + 3.5)}" font-size="9.5" text-anchor="middle" font-weight="bold">${candidate.rank}</text>` : '') +
+        '</g>',
+    );
+  }
+  const [bx, by] = project([input.best.lon, input.best.lat]);
+  // the best position is drawn above the candidates: it is what the figure is for
+  out.push(
+    `<g class="best-position" data-value-ug-m3="${input.best.value_ug_m3}">` +
+      `<path d="${star(bx, by, 13, 5.5)}" fill="#f2c14e" stroke="${INK}" stroke-width="1.6"/></g>`,
+  );
+  for (const receptor of input.receptors) {
+    const [x, y] = project([receptor.lon, receptor.lat]);
+    out.push(
+      `<g class="receptor" data-id="${escapeXml(receptor.id)}">` +
+        `<circle cx="${num(x)}" cy="${num(y)}" r="5" fill="#ffffff" stroke="${RECEPTOR_COLOUR}" stroke-width="2.4"/>` +
+        `<text x="${num(x + 9)}" y="${num(y + 4)}" font-size="11" fill="#ffffff" stroke="#ffffff" stroke-width="3" stroke-linejoin="round">${escapeXml(receptor.id)}</text>` +
+        `<text x="${num(x + 9)}" y="${num(y + 4)}" font-size="11" fill="${RECEPTOR_COLOUR}">${escapeXml(receptor.id)}</text></g>`,
+    );
+  }
+  out.push('</g>');
+  out.push(`<rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.size}" height="${FRAME.size}" fill="none" stroke="${INK}" stroke-width="1.2"/>`);
+  out.push(...tickLabels(extent, px, crs));
+  out.push(...scaleBar(extent, scale, converter, grid));
+  out.push(...northArrow(extent, converter));
+  out.push(...sitingLegend(input, crowded));
+  out.push(...cautionBlock(crs, input.provenance));
+  out.push('</svg>');
+  return { svg: `${out.join('\n')}\n`, width: MAP_WIDTH, height: MAP_HEIGHT, crs, extent };
+}
+
+/** A five-pointed star centred on (x, y), outer radius r, inner radius inner. */
+function star(x: number, y: number, r: number, inner: number): string {
+  const corners: string[] = [];
+  for (let k = 0; k < 10; k += 1) {
+    const angle = (Math.PI * k) / 5 - Math.PI / 2;
+    const radius = k % 2 === 0 ? r : inner;
+    corners.push(`${k === 0 ? 'M' : 'L'}${num(x + radius * Math.cos(angle))} ${num(y + radius * Math.sin(angle))}`);
+  }
+  return `${corners.join('')}Z`;
+}
+
+/** Whether two candidates' numbered circles (radius 8 px) would overlap at the figure's scale. */
+function candidatesCrowd(points: [number, number][]): boolean {
+  const clearance = 17;
+  for (let a = 0; a < points.length; a += 1) {
+    for (let b = a + 1; b < points.length; b += 1) {
+      if (Math.hypot(points[a][0] - points[b][0], points[a][1] - points[b][1]) < clearance) return true;
+    }
+  }
+  return false;
+}
+
+function sitingLegend(input: SitingFigureInput, crowded: boolean): string[] {
+  const out = [`<g class="legend siting-legend" transform="translate(${PANEL_LEFT} ${FRAME.top})">`];
+  let y = 8;
+  for (const line of wrapText(input.legendHeading, 270, 13)) {
+    out.push(`<text x="0" y="${y}" font-size="13" font-weight="bold">${escapeXml(line)}</text>`);
+    y += 16;
+  }
+  for (const text of input.legendLines) {
+    for (const line of wrapText(text, 270, 11)) {
+      out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">${escapeXml(line)}</text>`);
+      y += 14;
+    }
+  }
+  const levels = input.bands.properties.levels_ug_m3;
+  const drawn = new Set(input.bands.features.map((feature) => feature.properties.lower_ug_m3));
+  if (levels.length === 0) {
+    y += 16;
+    out.push(`<text x="0" y="${y}" font-size="11">no bands: the map is zero or flat</text>`);
+  }
+  for (let k = levels.length - 1; k >= 0; k -= 1) {
+    y += 22;
+    const upper = k + 1 < levels.length ? levels[k + 1] : null;
+    const label = upper === null ? `${levels[k]} and above` : `${levels[k]} to ${upper}`;
+    out.push(
+      `<rect class="legend-band" x="0" y="${y - 13}" width="30" height="17" fill="${sitingColour(k, levels.length)}" stroke="#4f5b66" stroke-width="0.6"/>`,
+      `<text x="40" y="${y}" font-size="12">${escapeXml(label)}${drawn.has(levels[k]) ? '' : ' (not reached)'}</text>`,
+    );
+  }
+  y += 20;
+  out.push(`<text x="0" y="${y}" font-size="11" fill="#5a524b">${escapeXml(`best position (${input.best.within}): ${input.best.value_ug_m3} µg/m³`)}</text>`);
+  y += 26;
+  out.push(`<line x1="0" y1="${y - 12}" x2="250" y2="${y - 12}" stroke="#d8d0c4"/>`);
+  const symbol = (drawing: string, text: string): void => {
+    y += 22;
+    out.push(drawing.replaceAll('Y0', String(y - 4)), `<text x="40" y="${y}" font-size="12">${escapeXml(text)}</text>`);
+  };
+  symbol(`<path d="${star(15, 0, 11, 4.6)}" transform="translate(0 Y0)" fill="#f2c14e" stroke="${INK}" stroke-width="1.4"/>`, 'best position on the map');
+  if (input.candidates.length > 0) {
+    symbol(
+      `<g transform="translate(15 Y0)"><circle r="8" fill="#ffffff" stroke="${INK}" stroke-width="1.3"/><text y="3.5" font-size="9.5" text-anchor="middle" font-weight="bold">1</text></g>`,
+      `candidate and its rank (1 = lowest)`,
+    );
+    if (crowded) {
+      symbol(`<circle cx="15" cy="Y0" r="2.6" fill="#ffffff" stroke="${INK}" stroke-width="0.9"/>`, 'other candidates (too close');
+      y += 14;
+      out.push(`<text x="40" y="${y}" font-size="12">to number: ranks in the table)</text>`);
+    } else if (input.candidates.some((candidate) => candidate.rank > LABELLED_CANDIDATE_RANKS)) {
+      symbol(`<circle cx="15" cy="Y0" r="2.6" fill="#ffffff" stroke="${INK}" stroke-width="0.9"/>`, `candidate ranked below ${LABELLED_CANDIDATE_RANKS}`);
+    }
+  }
+  symbol(`<circle cx="15" cy="Y0" r="5" fill="#ffffff" stroke="${RECEPTOR_COLOUR}" stroke-width="2.4"/>`, 'sensitive receptor (by id)');
+  if (input.siteRing !== null) {
+    symbol(`<rect x="4" y="-7" width="22" height="14" transform="translate(0 Y0)" fill="none" stroke="${INK}" stroke-width="2" stroke-dasharray="6 3"/>`, 'site polygon');
+  }
+  symbol(`<line x1="2" y1="Y0" x2="28" y2="Y0" stroke="#8c8379" stroke-width="1.5" stroke-dasharray="8 4"/>`, 'edge of the modelled grid');
   out.push('</g>');
   return out;
 }

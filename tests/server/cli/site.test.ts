@@ -1,6 +1,7 @@
 /**
  * Behaviour checks of `plumeplan site`, in process: help, a grid-mode siting of a coarse demo with a
- * candidate file and a site polygon (exit 0, the four files, what stdout says), an hourly series, and input
+ * candidate file and a site polygon (exit 0, the four files and the figure and report, what stdout says), an
+ * hourly series with --quick (no PNG, no PDF), and input
  * errors (exit 2, the option or field named) and a capability not built (exit 1). Ctrl-C: siteInterrupt.test.ts.
  */
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -60,6 +61,7 @@ describe('plumeplan site', () => {
     const run = capture();
     expect(await main(['site', '--help'], run.io, inProcess)).toBe(0);
     expect(run.stdout()).toContain('usage: plumeplan site SCENARIO --out DIR');
+    expect(run.stdout()).toMatch(/--quick +leave out the slow rendered files \(siting-map\.png, siting-report\.pdf\)/);
     const top = capture();
     expect(await main(['--help'], top.io)).toBe(0);
     expect(top.stdout()).toContain('plumeplan site SCENARIO');
@@ -68,11 +70,17 @@ describe('plumeplan site', () => {
   it('sites the demo stack in grid mode: the four files, the best position, the candidates, the limits and the caution', async () => {
     const run = capture();
     const out = path.join(scratch, 'out-grid');
-    const code = await main(['site', coarseDemo(), '--out', out, '--candidates', candidates, '--site-polygon', sitePolygon, '--spacing', '400', '--forward-runs', '3'], run.io, inProcess);
+    const scenarioFile = coarseDemo();
+    const code = await main(['site', scenarioFile, '--out', out, '--candidates', candidates, '--site-polygon', sitePolygon, '--spacing', '400', '--forward-runs', '3'], run.io, inProcess);
     expect(run.stderr()).not.toMatch(/invalid|failure/);
     expect(code).toBe(0);
-    for (const name of ['siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson']) expect(existsSync(path.join(out, name)), name).toBe(true);
+    const written = ['siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson', 'siting-map.svg', 'siting-map.png', 'siting-report.html', 'siting-report.pdf'];
+    for (const name of written) expect(existsSync(path.join(out, name)), name).toBe(true);
+    expect(readFileSync(path.join(out, 'siting-report.pdf')).subarray(0, 5).toString('ascii')).toBe('%PDF-');
+    // the report's reproducibility block holds the command as typed
+    expect(readFileSync(path.join(out, 'siting-report.html'), 'utf8')).toContain(`plumeplan site ${scenarioFile} --out ${out}`);
     const text = run.stdout();
+    expect(text).toContain('siting-map.svg, siting-map.png, siting-report.html, siting-report.pdf');
     expect(text).toMatch(/grid mode, 3 adjoint solves/);
     expect(text).toMatch(/Best position \(site polygon/);
     expect(text).toMatch(/yard-north|west-field/);
@@ -122,8 +130,14 @@ describe('plumeplan site', () => {
       const { kind: _kind, ...fields } = scenario.weather;
       scenario.weather = { kind: 'hourly', hours: [{ ...fields, time: '2026-01-05T10:00:00Z' }, { ...fields, time: '2026-01-05T11:00:00Z' }, { ...fields, windFrom_deg: 200, time: '2026-01-05T12:00:00Z' }] };
     });
-    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian'], run.io, inProcess), run.stderr()).toBe(0);
+    expect(await main(['site', hourly, '--out', path.join(scratch, 'hourly'), '--mode', 'gaussian', '--quick'], run.io, inProcess), run.stderr()).toBe(0);
     expect(run.stdout()).toMatch(/long-term mean PC/);
+    // --quick: the figure's SVG and the report's HTML, not the rendered PNG and PDF
+    expect(existsSync(path.join(scratch, 'hourly', 'siting-map.svg'))).toBe(true);
+    expect(existsSync(path.join(scratch, 'hourly', 'siting-report.html'))).toBe(true);
+    expect(existsSync(path.join(scratch, 'hourly', 'siting-map.png'))).toBe(false);
+    expect(existsSync(path.join(scratch, 'hourly', 'siting-report.pdf'))).toBe(false);
+    expect(readFileSync(path.join(scratch, 'hourly', 'siting-map.svg'), 'utf8')).toMatch(/long-term mean \(hourly series, period(<[^>]+>\s*)+mean\)/);
     const json = JSON.parse(readFileSync(path.join(scratch, 'hourly', 'siting.json'), 'utf8'));
     expect(json.weatherKind).toBe('hourly');
     expect(json.notes.join(' ')).toMatch(/hourly series of 3 hours, 2 distinct weather states/);

@@ -73,7 +73,7 @@ async function expectSameFiles(id: string, built: readonly [string, string | Uin
   for (const [name, content] of built) {
     const { bytes } = await download(id, name);
     const expected = typeof content === 'string' ? Buffer.from(content, 'utf8') : Buffer.from(content);
-    if (name.endsWith('.json')) expect(except(name, bytes.toString('utf8')), name).toBe(except(name, expected.toString('utf8')));
+    if (/\.(json|svg|html)$/.test(name)) expect(except(name, bytes.toString('utf8')), name).toBe(except(name, expected.toString('utf8')));
     else expect(bytes.equals(expected), name).toBe(true);
   }
 }
@@ -83,6 +83,11 @@ function withoutRunTimings(_name: string, text: string): string {
   const json = JSON.parse(text);
   delete json.run;
   return JSON.stringify(json);
+}
+
+/** siting.json without its timings; the figure and report without their date (the job's and the test's differ). */
+function withoutSitingTimes(name: string, text: string): string {
+  return name.endsWith('.json') ? withoutRunTimings(name, text) : text.replace(/\d{4}-\d\d-\d\dT\d\d:\d\d:\d\dZ/g, 'DATE');
 }
 
 async function submit(body: Record<string, unknown>, status = 202): Promise<string> {
@@ -127,15 +132,32 @@ describe('analysis runs', () => {
       { id: 'north', lon: -2.2841, lat: 54.0630 },
       { id: 'south', lon: -2.2841, lat: 54.0595 },
     ];
-    const id = await submit({ kind: 'site', scenarioId, mode: 'gaussian', candidates, spacing_m: 100 });
+    const id = await submit({ kind: 'site', scenarioId, mode: 'gaussian', candidates, spacing_m: 100, quick: true });
     const run = await finished(id);
     expect(run.status, JSON.stringify(run.error)).toBe('done');
     const names = run.results.map((file) => file.name).sort();
-    // the combined map, then one raster per receptor (the demo's three, at most MAX_RECEPTOR_RASTERS)
-    expect(names).toEqual(['candidates.csv', 'siting-map-care-home.tif', 'siting-map-fennick-row.tif', 'siting-map-school.tif', 'siting-map.tif', 'siting.geojson', 'siting.json']);
+    // the combined map, then one raster per receptor (the demo's three, at most MAX_RECEPTOR_RASTERS); quick: the figure's SVG and the report's HTML
+    expect(names).toEqual([
+      'candidates.csv', 'siting-map-care-home.tif', 'siting-map-fennick-row.tif', 'siting-map-school.tif', 'siting-map.svg', 'siting-map.tif',
+      'siting-report.html', 'siting.geojson', 'siting.json',
+    ]);
     expect(run.results.find((file) => file.name === 'siting-map.tif')?.contentType).toBe('image/tiff');
     const result = await computeSiting(scenario, { mode: 'gaussian', candidates, spacing_m: 100 }, undefined, {});
-    await expectSameFiles(id, await buildSitingFiles(result, { site: scenario.site }), withoutRunTimings);
+    const built = await buildSitingFiles(result, { site: scenario.site, scenario, command: 'POST /api/runs {"kind": "site"}', outputs: 'quick' });
+    await expectSameFiles(id, built, withoutSitingTimes);
+    const report = (await download(id, 'siting-report.html')).bytes.toString('utf8');
+    expect(report).toContain(SCREENING_CAUTION);
+  });
+
+  it('site: without quick also stores the rendered figure and report (siting-map.png, siting-report.pdf)', async () => {
+    const id = await submit({ kind: 'site', scenarioId, mode: 'gaussian', candidates: [{ id: 'north', lon: -2.2841, lat: 54.0630 }] });
+    const run = await finished(id);
+    expect(run.status, JSON.stringify(run.error)).toBe('done');
+    const types = Object.fromEntries(run.results.map((file) => [file.name, file.contentType]));
+    expect(types['siting-map.png']).toBe('image/png');
+    expect(types['siting-report.pdf']).toBe('application/pdf');
+    const pdf = (await download(id, 'siting-report.pdf')).bytes;
+    expect(pdf.subarray(0, 5).toString('ascii')).toBe('%PDF-');
   });
 
   let scenarioRunA: string;

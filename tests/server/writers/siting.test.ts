@@ -16,6 +16,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parseScenario } from '../../../scenarios/format/schema.ts';
+import type { Scenario } from '../../../scenarios/format/types.ts';
 import { createLocalProjection } from '../../../solver/grid/projection.ts';
 import { runSiting, type SitingResult } from '../../../solver/siting/runSiting.ts';
 import { SCREENING_CAUTION } from '../../../server/writers/caution.ts';
@@ -29,6 +30,7 @@ afterAll(() => rmSync(scratch, { recursive: true, force: true }));
 
 let result: SitingResult;
 let files: string[];
+let scenario: Scenario;
 
 beforeAll(async () => {
   const outcome = parseScenario({
@@ -49,9 +51,10 @@ beforeAll(async () => {
     assessment: { background_ug_m3: 10, standards: [{ name: 'NO2 1-hour mean', limit_ug_m3: 200, averaging_h: 1, allowedExceedances: 18 }] },
   });
   if (!outcome.ok) throw new Error(JSON.stringify(outcome.issues));
+  scenario = outcome.scenario;
   const ring = [lonLat(-200, -200), lonLat(200, -200), lonLat(200, 200), lonLat(-200, 200), lonLat(-200, -200)];
   result = await runSiting(outcome.scenario, { sitePolygon: ring, spacing_m: 100, candidates: [{ id: 'gate, west', lon: lonLat(-150, 0)[0], lat: lonLat(-150, 0)[1] }] });
-  files = await writeSitingFolder(scratch, result, { site });
+  files = await writeSitingFolder(scratch, result, { site, scenario });
 });
 
 /** Map values of the columns whose centres lie within `spacings` cell spacings of local (x, y). */
@@ -107,8 +110,11 @@ describe('siting-map.tif (and one per receptor) read by GDAL', () => {
 });
 
 describe('siting.geojson, candidates.csv, siting.json', () => {
-  it('writes the four files and a raster per receptor', () => {
-    expect(files).toEqual(['siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson', 'siting-map-houses.tif', 'siting-map-nursery.tif']);
+  it('writes the four files, a raster per receptor, the siting figure and report', () => {
+    expect(files).toEqual([
+      'siting.json', 'candidates.csv', 'siting-map.tif', 'siting.geojson', 'siting-map-houses.tif', 'siting-map-nursery.tif',
+      'siting-map.svg', 'siting-map.png', 'siting-report.html', 'siting-report.pdf',
+    ]);
   });
 
   it('siting.geojson is read by ogrinfo and carries the caution, the best position and the bands', () => {
