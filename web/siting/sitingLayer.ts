@@ -133,6 +133,7 @@ export class SitingLayer {
       });
       popup.append(move);
       marker.bindPopup(popup);
+      marker.bindTooltip(`Best position: ${formatConcentration(best.combined_ug_m3)} µg/m³ (click to move the stack here)`);
       marker.on('add', () => marker.getElement()?.setAttribute('data-testid', 'siting-best-marker'));
       marker.addTo(this.marks);
     }
@@ -162,7 +163,7 @@ export class SitingLayer {
 function legendHtml(shown: SitingShown, styles: readonly BandStyle[]): string {
   const rows = [...styles]
     .reverse()
-    .map((style) => `<li><span class="swatch" style="background:${style.colour}"></span>${escapeHtml(style.label)}</li>`)
+    .map((style) => `<li><span class="swatch" data-colour="${style.colour}"></span>${escapeHtml(style.label)}</li>`)
     .join('');
   const below = styles.length > 0 ? `<li><span class="swatch swatch-empty"></span>below ${formatConcentration(styles[0].lower_ug_m3)}</li>` : '';
   return (
@@ -219,7 +220,11 @@ class MapLayersControl extends L.Control {
       box.parentElement?.removeAttribute('title');
     }
     const slot = this.element?.querySelector('.siting-legend-slot') as HTMLElement | null;
-    if (slot) slot.innerHTML = legend;
+    if (slot) {
+      slot.innerHTML = legend;
+      // colours through the style object: the page's content security policy refuses style attributes
+      for (const swatch of Array.from(slot.querySelectorAll<HTMLElement>('.swatch[data-colour]'))) swatch.style.background = swatch.dataset.colour ?? '';
+    }
   }
 
   setSitingChecked(on: boolean): void {

@@ -227,9 +227,11 @@ export function sitingValueAt(raster: SitingRaster, lon: number, lat: number): n
 }
 
 /**
- * The read-out's line for the siting map under the pointer.
+ * The read-out's line for the siting map under the pointer: the raster's value where it has one (the
+ * site's pixels), else the band the pointer is in (the bands cover the whole grid; the raster holds
+ * nodata off the site, and at the site's edge a pixel can be off it while the position is on it).
  *
- * @param value the raster's value (null off the site)
+ * @param value the raster's value (null where it holds nodata)
  * @param styles the bands, for the band's range off the site
  * @param bandUnderPointer the band whose polygon holds the pointer (for positions off the site), or null
  */
@@ -238,7 +240,7 @@ export function sitingReadout(value: number | null, styles: readonly BandStyle[]
     const band = bandOf(styles, value);
     return `Siting map: ${formatConcentration(value)} µg/m³ if the stack stood here${band ? ` (band ${band.label})` : ''}`;
   }
-  if (bandUnderPointer !== null) return `Siting map: band ${bandUnderPointer.label} µg/m³ (off the site: values on the site only)`;
+  if (bandUnderPointer !== null) return `Siting map: band ${bandUnderPointer.label} µg/m³ here`;
   return styles.length > 0 ? `Siting map: below ${formatConcentration(styles[0].lower_ug_m3)} µg/m³ or off the grid` : '';
 }
 
