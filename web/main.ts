@@ -96,6 +96,8 @@ async function start(): Promise<void> {
 
   // --- the field on show -------------------------------------------------------------------------
   let shown: GroundField | null = null;
+  /** the layer switch of the concentration overlay: off, the read-out gives no concentration either */
+  let concentrationsOn = true;
   const results = new ResultsPanel(byId('results-panel'), doc, api, {
     showField: (field) => drawField(field),
     showDifference: (field) => drawDifference(field),
@@ -115,7 +117,7 @@ async function start(): Promise<void> {
       results.setLegend(null);
     }
     results.setAreas(null, []);
-    readout.setProbe({ valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null), label: 'A − B', standard: null });
+    readout.setProbe({ valueAt: (x, y) => (shown && concentrationsOn ? valueAt(shown, x, y) : null), label: 'A − B', standard: null });
     window.dispatchEvent(new CustomEvent(FIELD_DRAWN_EVENT, { detail: { origin: field.origin } }));
   }
 
@@ -148,7 +150,7 @@ async function start(): Promise<void> {
       results.setAreas(field, levels, placesInFrame());
     }
     readout.setProbe({
-      valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null),
+      valueAt: (x, y) => (shown && concentrationsOn ? valueAt(shown, x, y) : null),
       label: field.origin,
       standard: chosenStandard(),
     });
@@ -230,6 +232,8 @@ async function start(): Promise<void> {
     });
   };
   const showConcentrations = (on: boolean) => {
+    concentrationsOn = on;
+    readout.show(null);
     for (const pane of ['fieldPane', 'isoplethPane']) map.getPane(pane)!.style.display = on ? '' : 'none';
   };
   const siting = new SitingLayer(map, moveStack, showConcentrations, () =>

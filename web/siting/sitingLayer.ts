@@ -64,7 +64,7 @@ export class SitingLayer {
     this.control.setConcentrations(false);
     const ring = shown.content.siteRing;
     const points = ring ?? shown.content.candidates.map((c) => [c.lon, c.lat] as [number, number]);
-    if (points.length > 0) this.map.fitBounds(L.latLngBounds(points.map(([lon, lat]) => L.latLng(lat, lon))), { padding: [60, 60], maxZoom: 17 });
+    if (points.length > 0) this.map.fitBounds(L.latLngBounds(points.map(([lon, lat]) => L.latLng(lat, lon))), { paddingTopLeft: [60, 60], paddingBottomRight: [this.control.width() + 30, 90], maxZoom: 17 });
   }
 
   /** Redraw with the view's colour scale kind and opacity. */
@@ -167,10 +167,10 @@ function legendHtml(shown: SitingShown, styles: readonly BandStyle[]): string {
     .join('');
   const below = styles.length > 0 ? `<li><span class="swatch swatch-empty"></span>below ${formatConcentration(styles[0].lower_ug_m3)}</li>` : '';
   return (
-    `<div class="siting-legend" data-testid="siting-legend"><div class="legend-title">${escapeHtml(capitalised(shown.combination))} PC at the sensitive receptors if the stack stood here <span class="unit">[µg/m³]</span></div>` +
-    `<div class="legend-sub">${escapeHtml(shown.statistic)}; ${escapeHtml(shown.mode)} mode; stack ${escapeHtml(shown.stackId)}</div>` +
+    `<div class="siting-legend" data-testid="siting-legend"><div class="legend-title">${/^highest/i.test(shown.combination) ? 'Highest PC' : `${escapeHtml(capitalised(shown.combination))} of the PCs`} at the sensitive receptors if the stack stood here <span class="unit">[µg/m³]</span></div>` +
+    `<div class="legend-sub">${escapeHtml(shown.combination)}; ${escapeHtml(shown.statistic)}; ${escapeHtml(shown.mode)} mode; stack ${escapeHtml(shown.stackId)}</div>` +
     `<ul class="siting-bands">${rows}${below}</ul>` +
-    '<div class="siting-key"><span class="siting-best-key" aria-hidden="true"></span> best position <span class="siting-candidate-key" aria-hidden="true">1</span> candidate rank <span class="siting-site-key" aria-hidden="true"></span> site</div>' +
+    '<div class="siting-key"><span><span class="siting-best-key" aria-hidden="true"></span> best position</span> <span><span class="siting-candidate-key" aria-hidden="true">1</span> candidate rank</span> <span><span class="siting-site-key" aria-hidden="true"></span> site</span></div>' +
     `<div class="siting-caution">${escapeHtml(CAUTION_HEAD)} See the caution beside the results.</div></div>`
   );
 }
@@ -205,6 +205,11 @@ class MapLayersControl extends L.Control {
     concentrations.addEventListener('change', () => this.onConcentrations(concentrations.checked));
     siting.addEventListener('change', () => this.onSiting(siting.checked));
     return element;
+  }
+
+  /** Width on screen [px] (0 before it is on the map), to keep fitted views clear of it. */
+  width(): number {
+    return this.element?.offsetWidth ?? 0;
   }
 
   setConcentrations(on: boolean): void {
