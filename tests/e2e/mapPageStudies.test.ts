@@ -8,6 +8,7 @@
  */
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
+import { AxeBuilder } from '@axe-core/playwright';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { SCREENING_CAUTION } from '../../server/writers/caution.ts';
@@ -119,6 +120,11 @@ describe('the map page studies', () => {
     await page.hover('[data-testid="siting-best-marker"]');
     await expect.poll(() => page.locator('.leaflet-tooltip').allTextContents(), POLL).toContainEqual(expect.stringMatching(/^Best position: [\d.]+ µg\/m³/));
     await page.screenshot({ path: path.join(SCREENSHOTS, 'page-siting-1280x800.png') });
+
+    // axe-core on the page with the siting map, its markers and legend on show.
+    const axe = await new AxeBuilder({ page }).analyze();
+    const serious = axe.violations.filter((violation) => violation.impact === 'serious' || violation.impact === 'critical');
+    expect(serious.map((violation) => `${violation.id}: ${violation.nodes.map((node) => node.target.join(' ')).join('; ')}`)).toEqual([]);
 
     // The switch takes the map off and puts it back.
     await page.click('[data-testid="siting-toggle"]');
