@@ -27,9 +27,16 @@ import { StudiesPanel } from './results/studiesPanel.ts';
 import { ViewPanel, loadViewSettings, type ViewSettings } from './results/viewPanel.ts';
 import { ApiClient } from './api/client.ts';
 import { ScenarioDocument, type RawScenario } from './state/scenarioDocument.ts';
+import { SitingLayer } from './siting/sitingLayer.ts';
+import { decodeSitingRaster, readSitingGeoJson } from './siting/sitingMap.ts';
+import type { SitingFile } from './results/studyResults.ts';
+import type { RunRecord } from './api/client.ts';
 
 /** Fired on window when the page has drawn a field (the end-to-end tests and the bench wait for it). */
 export const FIELD_DRAWN_EVENT = 'plumeplan:field-drawn';
+
+/** Fired on window when the page has drawn a siting map (the end-to-end tests wait for it). */
+export const SITING_DRAWN_EVENT = 'plumeplan:siting-drawn';
 
 function byId<T extends HTMLElement>(id: string): T {
   const element = document.getElementById(id);
@@ -89,6 +96,8 @@ async function start(): Promise<void> {
 
   // --- the field on show -------------------------------------------------------------------------
   let shown: GroundField | null = null;
+  /** the layer switch of the concentration overlay: off, the read-out gives no concentration either */
+  let concentrationsOn = true;
   const results = new ResultsPanel(byId('results-panel'), doc, api, {
     showField: (field) => drawField(field),
     showDifference: (field) => drawDifference(field),
@@ -108,7 +117,7 @@ async function start(): Promise<void> {
       results.setLegend(null);
     }
     results.setAreas(null, []);
-    readout.setProbe({ valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null), label: 'A − B', standard: null });
+    readout.setProbe({ valueAt: (x, y) => (shown && concentrationsOn ? valueAt(shown, x, y) : null), label: 'A − B', standard: null });
     window.dispatchEvent(new CustomEvent(FIELD_DRAWN_EVENT, { detail: { origin: field.origin } }));
   }
 
@@ -141,7 +150,7 @@ async function start(): Promise<void> {
       results.setAreas(field, levels, placesInFrame());
     }
     readout.setProbe({
-      valueAt: (x, y) => (shown ? valueAt(shown, x, y) : null),
+      valueAt: (x, y) => (shown && concentrationsOn ? valueAt(shown, x, y) : null),
       label: field.origin,
       standard: chosenStandard(),
     });
@@ -211,15 +220,58 @@ async function start(): Promise<void> {
   new ObjectPanel(byId('panel-objects'), doc, editLayer);
   new ConditionsPanel(byId('panel-conditions'), doc);
   new LibraryPanel(byId('panel-library'), doc, api, results);
-  new StudiesPanel(byId('panel-studies'), doc, api, async () => {
-    if ((doc.dirty || doc.saved === null) && !(await results.save())) return null;
-    return doc.saved;
-  });
+  // --- the siting map ------------------------------------------------------------------------------
+  const moveStack = (stackId: string, lat: number, lon: number) => {
+    const sources = (doc.view.sources as { id?: string }[] | undefined) ?? [];
+    const index = sources.findIndex((s) => s.id === stackId);
+    if (index < 0) return;
+    doc.edit(`move stack ${stackId} to the best siting position`, (draft) => {
+      const target = (draft.sources as { lat?: number; lon?: number }[])[index];
+      target.lat = lat;
+      target.lon = lon;
+    });
+  };
+  const showConcentrations = (on: boolean) => {
+    concentrationsOn = on;
+    readout.show(null);
+    for (const pane of ['fieldPane', 'isoplethPane']) map.getPane(pane)!.style.display = on ? '' : 'none';
+  };
+  const siting = new SitingLayer(map, moveStack, showConcentrations, () =>
+    readout.setExtraLine(siting.isShown ? (latlng) => siting.readoutAt(latlng.lat, latlng.lng) : null),
+  );
+  const showSiting = async (run: RunRecord, file: SitingFile & { mode?: string; map: { meaning: string; combination?: string }; statistic: string; weatherKind?: string }) => {
+    const geojsonFile = run.results.find((f) => f.name === 'siting.geojson');
+    const tifFile = run.results.find((f) => f.name === 'siting-map.tif');
+    if (!geojsonFile) return;
+    const content = readSitingGeoJson(await api.resultJson(geojsonFile));
+    let raster = null;
+    try {
+      raster = tifFile ? await decodeSitingRaster(await api.resultBytes(tifFile)) : null;
+    } catch (error) {
+      // the bands still show; the read-out then gives each band's range only
+      console.warn(`siting-map.tif could not be read: ${error instanceof Error ? error.message : String(error)}`);
+    }
+    const statistic = file.statistic === 'mean' ? 'long-term mean' : file.weatherKind === 'windRose' ? 'wind rose' : 'one steady weather state';
+    siting.show({ content, raster, stackId: file.stack.id, statistic, mode: file.mode ?? run.mode, combination: file.map.combination ?? 'highest' }, settings.scaleKind, settings.opacity);
+    window.dispatchEvent(new CustomEvent(SITING_DRAWN_EVENT, { detail: { best: content.best, candidates: content.candidates.length } }));
+  };
+  new StudiesPanel(
+    byId('panel-studies'),
+    doc,
+    api,
+    async () => {
+      if ((doc.dirty || doc.saved === null) && !(await results.save())) return null;
+      return doc.saved;
+    },
+    (run, file) => void showSiting(run, file as Parameters<typeof showSiting>[1]).catch((error: unknown) => console.warn(`the siting map could not be drawn: ${error instanceof Error ? error.message : String(error)}`)),
+    moveStack,
+  );
   new ViewPanel(byId('panel-view'), map, storage, settings, (next) => {
     const tileChanged = next.tileUrl !== settings.tileUrl;
     settings = next;
     if (tileChanged) applyTiles();
     drawField(shown);
+    siting.redraw(settings.scaleKind, settings.opacity);
     results.refreshVerdicts();
   });
 
@@ -232,6 +284,7 @@ async function start(): Promise<void> {
       gridLayer = new MetricGridLayer(frame).addTo(map);
       readout.remove();
       readout = new PointerReadoutControl(frame).addTo(map);
+      readout.setExtraLine(siting.isShown ? (latlng) => siting.readoutAt(latlng.lat, latlng.lng) : null);
       map.setView([nextSite.lat, nextSite.lon], map.getZoom());
     }
     updateTopbar();
@@ -294,7 +347,7 @@ async function start(): Promise<void> {
   fitToScenario(map, frame, doc.view);
   requestPreview(doc.view);
   await results.connect();
-  (window as unknown as { plumeplan?: unknown }).plumeplan = { doc, map, editLayer, results };
+  (window as unknown as { plumeplan?: unknown }).plumeplan = { doc, map, editLayer, results, siting };
 }
 
 /** The server's copy of the demo, or its most recently changed scenario; null without a server. */

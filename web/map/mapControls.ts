@@ -44,6 +44,8 @@ export class PointerReadoutControl extends L.Control {
   private element: HTMLElement | null = null;
   private probe: FieldProbe | null = null;
   private last: L.LatLng | null = null;
+  /** a further line under the value (the siting map's), or null */
+  private extraLine: ((latlng: L.LatLng) => string | null) | null = null;
 
   constructor(private readonly frame: LocalFrame) {
     super({ position: 'bottomleft' });
@@ -66,6 +68,13 @@ export class PointerReadoutControl extends L.Control {
 
   setProbe(probe: FieldProbe | null): void {
     this.probe = probe;
+    this.show(this.last);
+  }
+
+  /** A further line for the read-out (the siting map's value), or null for none. */
+  setExtraLine(line: ((latlng: L.LatLng) => string | null) | null): void {
+    this.extraLine = line;
+    this.element?.classList.toggle('with-extra', line !== null);
     this.show(this.last);
   }
 
@@ -93,10 +102,12 @@ export class PointerReadoutControl extends L.Control {
         valueLine = `<div class="value" data-testid="pointer-value"><b>${formatConcentration(value)} µg/m³</b> <span class="muted">${escapeHtml(this.probe.label)}</span>${share}</div>`;
       }
     }
+    const extra = this.extraLine?.(latlng) ?? null;
     this.element.innerHTML =
       `<div>lat ${formatDegrees(latlng.lat)}, lon ${formatDegrees(latlng.lng)}</div>` +
       `<div>x ${formatMetres(x)} m, y ${formatMetres(y)} m from the site</div>` +
-      valueLine;
+      valueLine +
+      (extra ? `<div class="value" data-testid="pointer-siting">${escapeHtml(extra)}</div>` : '');
   }
 }
 

@@ -33,6 +33,9 @@ export class StudiesPanel {
     private readonly api: ApiClient,
     /** save the scenario if need be; the saved reference, or null when it cannot be saved */
     private readonly ensureSaved: () => Promise<{ id: string; revision: number } | null>,
+    /** a finished siting study: draw it on the map; `move` puts the stack at the best position */
+    private readonly onSiting?: (run: RunRecord, siting: SitingFile) => void,
+    private readonly moveStack?: (stackId: string, lat: number, lon: number) => void,
   ) {
     this.render();
     doc.subscribe(() => this.refreshChoices());
@@ -217,6 +220,17 @@ export class StudiesPanel {
     const file = run.results.find((f) => f.name === 'siting.json');
     if (!file) return;
     const siting = await this.api.resultJson<SitingFile>(file);
-    this.q('[data-testid="site-result"]').innerHTML = sitingResultHtml(siting, this.receptorNames()) + downloadsHtml(run);
+    const result = this.q('[data-testid="site-result"]');
+    result.innerHTML = sitingResultHtml(siting, this.receptorNames()) + downloadsHtml(run);
+    if (this.moveStack) {
+      const move = document.createElement('button');
+      move.type = 'button';
+      move.dataset.testid = 'siting-move-stack';
+      move.textContent = `Move ${siting.stack.id} to the best position`;
+      move.title = 'An edit of the scenario: Undo takes it back';
+      move.addEventListener('click', () => this.moveStack?.(siting.stack.id, siting.best.lat, siting.best.lon));
+      result.querySelector('[data-testid="siting-answer"]')?.after(move);
+    }
+    this.onSiting?.(run, siting);
   }
 }
