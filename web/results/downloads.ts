@@ -31,10 +31,32 @@ export const FILE_LABELS: Record<string, string> = {
   'candidates.csv': 'Candidate positions ranked (CSV)',
   'siting-map.tif': 'Siting map (GeoTIFF)',
   'siting.geojson': 'Siting map bands (GeoJSON)',
+  'siting-map.svg': 'Siting map figure (SVG)',
+  'siting-map.png': 'Siting map figure (PNG)',
+  'siting-report.html': 'Siting report (web page, prints on A4)',
+  'siting-report.pdf': 'Siting report (PDF, A4)',
+  'difference-map.svg': 'Difference map, B - A (SVG)',
+  'difference-map.png': 'Difference map, B - A (PNG)',
+  'comparison-report.html': 'Comparison report (web page, prints on A4)',
+  'comparison-report.pdf': 'Comparison report (PDF, A4)',
 };
 
 /** The consultation pack's files, listed first when a run has them. */
-const PACK_FIRST = ['report.pdf', 'ground.tif', 'map.png', 'plumeplan-run.zip', 'report.html', 'map.svg', 'receptors-with-caution.csv'];
+const PACK_FIRST = [
+  'report.pdf',
+  'comparison-report.pdf',
+  'siting-report.pdf',
+  'ground.tif',
+  'map.png',
+  'difference-map.png',
+  'siting-map.png',
+  'plumeplan-run.zip',
+  'report.html',
+  'comparison-report.html',
+  'siting-report.html',
+  'map.svg',
+  'receptors-with-caution.csv',
+];
 
 export function formatBytes(bytes: number): string {
   if (bytes < 1024) return `${bytes} B`;

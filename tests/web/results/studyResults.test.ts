@@ -142,5 +142,10 @@ describe('study results', () => {
     expect(order).toEqual(['report.pdf', 'ground.tif', 'map.png', 'plumeplan-run.zip', 'summary.json']);
     expect(text(downloadsHtml({ results: [file('summary.json')] }))).toContain('comes with a run that asks for it');
     expect(text(downloadsHtml({ results: [file('a.summary.json'), file('comparison.json')] }))).toContain('A: Summary (JSON)');
+    // a siting study's and a comparison's reports and figures lead their lists too, named for people
+    const siting = downloadsHtml({ results: [file('siting.json'), file('siting-map.tif'), file('siting-map.png'), file('siting-report.pdf')] });
+    expect([...siting.matchAll(/data-testid="download-([^"]+)"/g)].map((m) => m[1])).toEqual(['siting-report.pdf', 'siting-map.png', 'siting.json', 'siting-map.tif']);
+    expect(text(siting)).toContain('Siting report (PDF, A4)');
+    expect(text(downloadsHtml({ results: [file('comparison.json'), file('comparison-report.pdf')] }))).toContain('Comparison report (PDF, A4)');
   });
 });
