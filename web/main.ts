@@ -287,6 +287,8 @@ async function start(): Promise<void> {
       readout.setExtraLine(siting.isShown ? (latlng) => siting.readoutAt(latlng.lat, latlng.lng) : null);
       map.setView([nextSite.lat, nextSite.lon], map.getZoom());
     }
+    // a siting map belongs to the scenario it was made for; opening another (or a new one) takes it away
+    if (reason === 'open' || reason === 'new' || reason.startsWith('open revision')) siting.clear();
     updateTopbar();
     if (reason !== 'saved') {
       results.scenarioEdited();

@@ -182,6 +182,12 @@ describe('the map page studies', () => {
     await page.locator('#map').scrollIntoViewIfNeeded();
     await page.evaluate(() => (globalThis as unknown as { scrollTo(x: number, y: number): void }).scrollTo(0, 0));
     await page.screenshot({ path: path.join(SCREENSHOTS, 'page-siting-tablet-820.png') });
+    // The siting map answered a question about this scenario: opening another one takes it away.
+    await page.click('#tab-library');
+    page.once('dialog', (dialog) => void dialog.accept()); // "discard unsaved changes?" when the page asks
+    await page.click('button[data-act="new"]');
+    await expect.poll(() => page.locator('[data-testid="siting-best-marker"]').count(), POLL).toBe(0);
+    expect(await page.locator('[data-layer="siting"]').isDisabled()).toBe(true);
     expect(problems).toEqual([]);
     await close();
   }, 600_000);

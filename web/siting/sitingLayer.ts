@@ -139,6 +139,20 @@ export class SitingLayer {
     }
   }
 
+  /**
+   * Take the siting map away (another scenario was opened: the map answered a question about the
+   * previous one). The concentration overlay comes back on.
+   */
+  clear(): void {
+    if (this.shown === null) return;
+    this.shown = null;
+    this.bands.clearLayers();
+    this.marks.clearLayers();
+    this.setVisible(false);
+    this.control.setSiting(false, '');
+    this.control.setConcentrations(true);
+  }
+
   setVisible(on: boolean): void {
     this.visible = on && this.shown !== null;
     for (const group of [this.bands, this.marks]) {
@@ -222,7 +236,8 @@ class MapLayersControl extends L.Control {
     const box = this.element?.querySelector('[data-layer="siting"]') as HTMLInputElement | null;
     if (box) {
       box.disabled = !available;
-      box.parentElement?.removeAttribute('title');
+      if (available) box.parentElement?.removeAttribute('title');
+      else box.parentElement?.setAttribute('title', 'Run a siting study (Studies tab) first');
     }
     const slot = this.element?.querySelector('.siting-legend-slot') as HTMLElement | null;
     if (slot) {
