@@ -144,6 +144,18 @@ export function inputWarnings(scenario: Scenario, geometry: ScenarioGeometry): I
       }
     });
   }
+  // A derived domain coarsened by a far receptor or source: `validate` says so before anyone runs it.
+  const coarsening = geometry.domainCoarsening;
+  if (coarsening !== null) {
+    warnings.push({
+      path: coarsening.field,
+      value: coarsening.id,
+      message:
+        `is ${(coarsening.distance_m / 1000).toFixed(1)} km from the site: covering it, the derived domain would pass the ${coarsening.maxCells} cells ` +
+        `a derived domain may have at the ${coarsening.nearSpacing_m} m cells the sources need, so its cells are ${coarsening.spacing_m} m; ` +
+        'the figures at the other receptors can then move by more than the resolution check\'s 10 %: give a domain, or ask for the resolution check',
+    });
+  }
   return warnings;
 }
 

@@ -53,4 +53,20 @@ describe('inputWarnings', () => {
     });
     expect(warningsOf(scenario)).toEqual([]);
   });
+
+  it('says when a far receptor coarsens a derived domain, and not before', () => {
+    // Without a domain the demo's plant takes 20 m cells (solver/grid/domainDefaults.ts); a farm 5 km south
+    // needs a half-width whose 20 m grid passes the 4 M cells a derived domain may have (as
+    // tests/solver/grid/receptorAdded.test.ts measures), so the cells become 50 m and validate says so.
+    const near = demo((raw) => delete raw.domain);
+    expect(warningsOf(near)).toEqual([]);
+    const far = demo((raw) => {
+      delete raw.domain;
+      raw.receptors.push({ id: 'far-farm', name: 'Far farm', lon: raw.site.lon, lat: raw.site.lat - 0.045, height_m: 1.5 });
+    });
+    const warnings = warningsOf(far);
+    expect(warnings).toHaveLength(1);
+    expect(warnings[0]).toMatchObject({ path: 'receptors[3]', value: 'far-farm' });
+    expect(warnings[0].message).toMatch(/^is 5\.0 km from the site: .* 20 m cells .* so its cells are 50 m;/);
+  });
 });
