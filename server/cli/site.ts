@@ -327,7 +327,7 @@ export function describeSiting(result: SitingResult, directory: string, files: s
     if (result.candidates.length > 10) lines.push(`  ... ${result.candidates.length - 10} more in candidates.csv`);
   }
   if (result.forwardAgreement !== null) {
-    lines.push(`Check: forward runs at ${result.forwardRunCount} candidates agree with the map within ${Number((100 * result.forwardAgreement).toPrecision(2))} % of the largest PC`);
+    lines.push(`Check: forward runs at ${result.forwardRunCount} candidates agree with the map ${result.forwardAgreement === 0 ? 'exactly' : `within ${Number((100 * result.forwardAgreement).toPrecision(2))} % of the largest PC`}`);
   }
   lines.push(`Holds only for: ${result.limits.join('; ')}`);
   lines.push(`Caution: ${SCREENING_CAUTION}`);

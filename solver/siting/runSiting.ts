@@ -335,7 +335,7 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   }
   if (siteMask === null) notes.push('no site polygon: the best position is the lowest value in the whole domain, often at an edge far from the receptors; give a site polygon to confine it');
   if (forwardAgreement !== null) {
-    notes.push(`forward runs at ${forwardCount} candidates agree with the map's receptor PCs within ${(100 * forwardAgreement).toPrecision(2)} % of the largest forward PC`);
+    notes.push(`forward runs at ${forwardCount} candidates agree with the map's receptor PCs ${forwardAgreement === 0 ? 'exactly' : `within ${(100 * forwardAgreement).toPrecision(2)} % of the largest forward PC`}`);
   }
   if (mode === 'grid' && exactAt.length < positions.length) {
     notes.push(`${positions.length - exactAt.length} site-lattice candidates (more than ${EXACT_CANDIDATES} in all) are read from the map between column centres, not each with its own near-field plan: near a receptor they can differ from a forward run by more than the map's columns do`);
