@@ -22,7 +22,7 @@ import { renderSvgToPng } from './map/mapPng.ts';
 import { renderMapSvg, type ContextLayer, type MapFigure } from './map/mapSvg.ts';
 import { plumeplanVersion, scenarioChecksum, type RunProvenance } from './provenance.ts';
 import { renderReportHtml } from './report/reportHtml.ts';
-import type { ReportModel, ReportSection, ReportTable } from './report/reportModel.ts';
+import { reproducibilityBlock, type ReportModel, type ReportSection, type ReportTable } from './report/reportModel.ts';
 import { writeReportPdf } from './report/reportPdf.ts';
 import { roundSignificant } from './rounding.ts';
 
@@ -297,26 +297,14 @@ function verdictSection(input: ComparisonReportInput): ReportSection {
 }
 
 function reproducibilitySection(provenance: RunProvenance, checksumA: string, checksumB: string): ReportSection {
-  return {
-    id: 'reproducibility',
-    heading: 'Reproducibility',
-    paragraphs: [],
-    tables: [
-      {
-        id: 'reproducibility',
-        caption: 'To compare these again',
-        headings: ['item', 'value'],
-        numeric: [false, false],
-        rows: [
-          ['plumeplan version', provenance.version],
-          ['scenario A SHA-256', checksumA],
-          ['scenario B SHA-256', checksumB],
-          ['compared (UTC)', provenance.runDate],
-          ['command', provenance.command],
-        ],
-        widths: [1, 4],
-        note: 'Checksums of each scenario as run, in canonical JSON (keys sorted), as in each run zip.',
-      },
+  return reproducibilityBlock(
+    provenance,
+    'To compare these again',
+    [
+      ['scenario A SHA-256', checksumA],
+      ['scenario B SHA-256', checksumB],
+      ['compared (UTC)', provenance.runDate],
     ],
-  };
+    'Checksums of each scenario as run, in canonical JSON (keys sorted), as in each run zip.',
+  );
 }

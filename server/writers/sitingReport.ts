@@ -21,7 +21,7 @@ import { renderSvgToPng } from './map/mapPng.ts';
 import { renderSitingMapSvg, type MapFigure } from './map/mapSvg.ts';
 import { plumeplanVersion, scenarioChecksum, type RunProvenance } from './provenance.ts';
 import { renderReportHtml } from './report/reportHtml.ts';
-import type { ReportModel, ReportSection } from './report/reportModel.ts';
+import { reproducibilityBlock, type ReportModel, type ReportSection } from './report/reportModel.ts';
 import { writeReportPdf } from './report/reportPdf.ts';
 import { roundDecimals, roundSignificant } from './rounding.ts';
 
@@ -290,25 +290,13 @@ function limitsSection(result: SitingResult): ReportSection {
 }
 
 function reproducibilitySection(provenance: RunProvenance): ReportSection {
-  return {
-    id: 'reproducibility',
-    heading: 'Reproducibility',
-    paragraphs: [],
-    tables: [
-      {
-        id: 'reproducibility',
-        caption: 'To site the stack again',
-        headings: ['item', 'value'],
-        numeric: [false, false],
-        rows: [
-          ['plumeplan version', provenance.version],
-          ['scenario SHA-256', provenance.scenarioSha256],
-          ['sited (UTC)', provenance.runDate],
-          ['command', provenance.command],
-        ],
-        widths: [1, 4],
-        note: 'Checksum of the scenario as sited, in canonical JSON (keys sorted), as in a run zip.',
-      },
+  return reproducibilityBlock(
+    provenance,
+    'To site the stack again',
+    [
+      ['scenario SHA-256', provenance.scenarioSha256],
+      ['sited (UTC)', provenance.runDate],
     ],
-  };
+    'Checksum of the scenario as sited, in canonical JSON (keys sorted), as in a run zip.',
+  );
 }

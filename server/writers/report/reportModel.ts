@@ -458,7 +458,15 @@ function methodSection(scenario: Scenario, result: ScenarioRunResult, summary: R
   };
 }
 
-function reproducibilitySection(provenance: RunProvenance): ReportSection {
+/**
+ * The reproducibility block every report ends with: the version, the checksums, the date and the
+ * command, in one table. The run, comparison and siting reports differ only in their words.
+ *
+ * @param caption what the table is for ("To run this again")
+ * @param rows the rows between the version and the command (checksums, the date)
+ * @param note how the checksums are made
+ */
+export function reproducibilityBlock(provenance: RunProvenance, caption: string, rows: string[][], note: string): ReportSection {
   return {
     id: 'reproducibility',
     heading: 'Reproducibility',
@@ -466,20 +474,27 @@ function reproducibilitySection(provenance: RunProvenance): ReportSection {
     tables: [
       {
         id: 'reproducibility',
-        caption: 'To run this again',
+        caption,
         headings: ['item', 'value'],
         numeric: [false, false],
-        rows: [
-          ['plumeplan version', provenance.version],
-          ['scenario SHA-256', provenance.scenarioSha256],
-          ['run date (UTC)', provenance.runDate],
-          ['command', provenance.command],
-        ],
+        rows: [['plumeplan version', provenance.version], ...rows, ['command', provenance.command]],
         widths: [1, 4],
-        note: 'The checksum is of the scenario as run, in canonical JSON (keys sorted): scenario.json in the run zip.',
+        note,
       },
     ],
   };
+}
+
+function reproducibilitySection(provenance: RunProvenance): ReportSection {
+  return reproducibilityBlock(
+    provenance,
+    'To run this again',
+    [
+      ['scenario SHA-256', provenance.scenarioSha256],
+      ['run date (UTC)', provenance.runDate],
+    ],
+    'The checksum is of the scenario as run, in canonical JSON (keys sorted): scenario.json in the run zip.',
+  );
 }
 
 /** The site's default export CRS (its UTM zone), for callers that draw no map of their own. */
