@@ -2,6 +2,7 @@
  * Moving a stack or receptor with the keyboard: an arrow key moves it by a stated step in the site's
  * local metres (east, west, north, south), Shift by the larger step. Pure, for the tests.
  */
+import { offsetFromSite } from '../map/offsetWords.ts';
 
 /** Keyboard moves of a focused stack or receptor [m]: an arrow key moves it this far, with Shift the larger step. */
 export const KEY_STEP_m = 10;
@@ -39,7 +40,7 @@ export function keyMove(
 export function moveAnnouncement(what: string, name: string, dx_m: number, dy_m: number, x_m: number, y_m: number): string {
   const direction = dx_m > 0 ? 'east' : dx_m < 0 ? 'west' : dy_m > 0 ? 'north' : 'south';
   const distance = Math.abs(dx_m) + Math.abs(dy_m);
-  return `${what} ${name} moved ${distance} m ${direction}, now ${Math.round(x_m)} m east and ${Math.round(y_m)} m north of the site`;
+  return `${what} ${name} moved ${distance} m ${direction}, now ${offsetFromSite(x_m, y_m)}`;
 }
 
 

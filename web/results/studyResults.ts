@@ -5,6 +5,7 @@
  */
 import { formatConcentration } from '../colour/legendLevels.ts';
 import { escapeHtml } from '../map/escapeHtml.ts';
+import { offsetFromSite } from '../map/offsetWords.ts';
 import { lineChartSvg, type LineSeries } from './lineChart.ts';
 
 export interface SweepFile {
@@ -141,7 +142,7 @@ export function sitingResultHtml(siting: SitingFile, receptorNames: ReadonlyMap<
   const listed = siting.candidates.slice(0, MAX_LISTED_CANDIDATES);
   const standardName = typeof siting.standard === 'string' ? siting.standard : (siting.standard?.name ?? null);
   return (
-    `<p class="study-answer" data-testid="siting-answer"><b>Best position for ${escapeHtml(siting.stack.id)}: ${Math.round(siting.best.x_m)} m east, ${Math.round(siting.best.y_m)} m north of the site</b> ` +
+    `<p class="study-answer" data-testid="siting-answer"><b>Best position for ${escapeHtml(siting.stack.id)}: ${offsetFromSite(siting.best.x_m, siting.best.y_m)}</b> ` +
     `(lon ${siting.best.lon}, lat ${siting.best.lat}; ${formatConcentration(siting.best.combined_ug_m3)} µg/m³).</p>` +
     `<p class="hint">${escapeHtml(siting.map.meaning)}.</p>` +
     '<div class="table-scroll" tabindex="0" role="region" aria-label="candidate positions, scrolls sideways"><table class="results study-table" data-testid="siting-table">' +

@@ -14,6 +14,7 @@ import type { LevelArea } from '../../solver/assessment/footprintAreas.ts';
 import type { ScreeningThresholds } from '../../scenarios/format/types.ts';
 import { formatConcentration } from '../colour/legendLevels.ts';
 import { escapeHtml } from '../map/escapeHtml.ts';
+import { offsetFromSite } from '../map/offsetWords.ts';
 
 /** A standard's verdicts as summary.json holds them (the fields the table reads). */
 export interface VerdictStandard {
@@ -56,7 +57,7 @@ function maximumPlace(maximum: NonNullable<VerdictStandard['maximum']>, receptor
   if (maximum.where === 'receptors') return `maximum: ${escapeHtml(receptorNames.get(maximum.receptorId ?? '') ?? maximum.receptorId ?? '')}`;
   const east = Math.round(maximum.x_m);
   const north = Math.round(maximum.y_m);
-  const title = `the point of maximum impact on the ground, ${east} m east and ${north} m north of the site${maximum.searched ? `, ${maximum.searched}` : ''}`;
+  const title = `the point of maximum impact on the ground, ${offsetFromSite(maximum.x_m, maximum.y_m)}${maximum.searched ? `, ${maximum.searched}` : ''}`;
   return `<span title="${escapeHtml(title)}">maximum <span class="where">x ${east}, y ${north} m</span></span>`;
 }
 

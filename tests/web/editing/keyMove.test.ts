@@ -41,7 +41,7 @@ describe('keyboard moves', () => {
 
   it('announces what moved, how far, which way and where it is now', () => {
     expect(moveAnnouncement('Stack', 'Boiler house stack', 0, -100, 12.4, -87.6)).toBe(
-      'Stack Boiler house stack moved 100 m south, now 12 m east and -88 m north of the site',
+      'Stack Boiler house stack moved 100 m south, now 12 m east and 88 m south of the site',
     );
     expect(moveAnnouncement('Receptor', 'School', 10, 0, 10, 0)).toMatch(/moved 10 m east/);
   });

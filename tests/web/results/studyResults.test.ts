@@ -104,7 +104,7 @@ describe('study results', () => {
         new Map([['a', 'Ashby Lane houses']]),
       ),
     );
-    expect(flat).toContain('Best position for boiler-stack: -62 m east, 10 m north of the site');
+    expect(flat).toContain('Best position for boiler-stack: 62 m west and 10 m north of the site');
     expect(flat).toContain('1 x -62, y 10 4.2 Ashby Lane houses (4.2) 2.1 %');
     expect(flat).toContain('The 2 best of 2 candidate positions');
     expect(flat).toContain(SCREENING_CAUTION.slice(0, 40));
