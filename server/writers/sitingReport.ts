@@ -15,6 +15,7 @@
 import type { Scenario } from '../../scenarios/format/types.ts';
 import { isInsideRing } from '../../solver/grid/siteBoundary.ts';
 import type { SitingResult } from '../../solver/siting/runSiting.ts';
+import { OUTCOME_WORDS } from './assessmentFigures.ts';
 import { SCREENING_CAUTION } from './caution.ts';
 import type { FootprintCollection } from './footprint.ts';
 import { renderSvgToPng } from './map/mapPng.ts';
@@ -148,7 +149,7 @@ function askedSection(result: SitingResult): ReportSection {
     ['effective height [m]', result.map.effectiveHeights_m.length <= 6 ? result.map.effectiveHeights_m.map((h) => String(roundDecimals(h, 1))).join(', ') : `${result.map.effectiveHeights_m.length} weather states, ${fig(Math.min(...result.map.effectiveHeights_m))} to ${fig(Math.max(...result.map.effectiveHeights_m))}`],
     ['sensitive receptors', result.receptors.map((receptor) => `${receptor.id} (${receptor.name}, ${receptor.height_m} m)`).join('; ')],
     ['receptors combined as', result.map.combination],
-    ['standard', standard === null ? 'none: no % of a standard or verdict' : `${standard.name}: ${standard.limit_ug_m3} µg/m³, averaging ${standard.averaging_h} h; insignificant below ${standard.threshold_percent} % of it`],
+    ['standard', standard === null ? 'none: no % of a standard or verdict' : `${standard.name}: ${standard.limit_ug_m3} µg/m³, averaging ${standard.averaging_h} h; screened out below ${standard.threshold_percent} % of it`],
     ['level for areas', result.level_ug_m3 === null ? 'none' : `${fig(result.level_ug_m3)} µg/m³`],
     ['positions', sampled.join('; ')],
     ['solver, weather', `${result.mode}, ${result.weatherKind}; values are the ${statisticWords(result)}`],
@@ -201,12 +202,12 @@ function candidateSection(result: SitingResult): ReportSection {
     ...candidate.receptorPc_ug_m3.map(fig),
     fig(candidate.highestPc_ug_m3),
     candidate.percentOfStandard === null ? '-' : String(roundSignificant(candidate.percentOfStandard, 2)),
-    candidate.verdict ?? '-',
+    candidate.verdict === null ? '-' : OUTCOME_WORDS[candidate.verdict],
     ...(anyArea ? [hectares(candidate.areaAboveLevel_m2)] : []),
   ]);
   const notes = [
     'PC from the siting map at each sensitive receptor, to 3 significant figures; rank 1 has the lowest combined value.',
-    'The verdict is common practice in permit guidance (PC below 1 % of a long-term or 10 % of a short-term standard is insignificant); a screening aid, not a legal decision.',
+    'The verdict is the assessment\'s screen, common practice in permit guidance (PC below 1 % of a long-term or 10 % of a short-term standard, then PEC below 70 % of a long-term one, screens out); one steady state, or a mean against a short-term standard, is indicative only. A screening aid, not a legal decision.',
   ];
   if (anyArea) notes.push('Area from a forward run of the stack at the candidate; "-" where none was run.');
   if (candidates.length > shown.length) notes.push(`The best ${shown.length} of ${candidates.length} candidates; all of them are in candidates.csv.`);

@@ -16,7 +16,8 @@ import { resolveWeatherWithSource } from '../meteorology/resolveWeather.ts';
 import { partOfProgress } from './adjointSolve.ts';
 import { isInsideRing } from '../grid/siteBoundary.ts';
 import { columnsInsideRing, latticeInsideRing, lowestColumn } from './candidates.ts';
-import { chooseStandard, screenPc, type ScreeningVerdict } from './screening.ts';
+import { isLongTerm as isLongTermStandard } from '../assessment/standards.ts';
+import { chooseStandard, screenFor, type ScreenedPc, type ScreeningVerdict } from './screening.ts';
 import { gaussianSitingMap, gridSitingMap, SITING_LIMITS, type PcAt, type ReceptorCombination, type SitingMap, type WeightedWeather } from './sitingMap.ts';
 
 /** A candidate position as given: WGS 84 degrees, with an optional id. */
@@ -216,7 +217,11 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   const statistic = weather.kind === 'steady' ? 'concentration' : 'mean';
   const standards = scenario.assessment?.standards ?? [];
   const standard = chooseStandard(standards, weather.kind as SitingResult['weatherKind'], options.standardName);
-  const threshold_percent = standard === null ? null : screenPc(0, standard).threshold_percent;
+  const screen =
+    standard === null
+      ? null
+      : screenFor(standard, weather.kind as SitingResult['weatherKind'], scenario.assessment?.background_ug_m3 ?? 0, scenario.assessment?.screening);
+  const threshold_percent = screen === null ? null : screen(0).threshold_percent;
   const level_ug_m3 = options.level_ug_m3 ?? (standard !== null && threshold_percent !== null ? (standard.limit_ug_m3 * threshold_percent) / 100 : null);
   if (level_ug_m3 !== null && !(level_ug_m3 > 0 && Number.isFinite(level_ug_m3))) throw new RangeError(`level is ${level_ug_m3} ug/m3; allowed: a finite level > 0`);
 
@@ -258,7 +263,7 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   const { map, pcAt } = mode === 'grid' ? gridSitingMap(base, stack, weathers, mapOptions) : gaussianSitingMap(base, stack, weathers, mapOptions);
   const mapSeconds = (performance.now() - mapStarted) / 1000;
 
-  const candidates = rankCandidates(positions, receptors, map, pcAt, standard, projection.toLonLat);
+  const candidates = rankCandidates(positions, receptors, map, pcAt, screen, projection.toLonLat);
 
   // The best position: the lowest column centre inside the site (or anywhere without one), unless a
   // candidate inside the site (a lattice point on its edge, say) is lower still.
@@ -342,7 +347,7 @@ async function site(scenario: Scenario, mode: SolverMode, options: SitingOptions
   }
   if (candidates.length > forwardCount) notes.push(`${candidates.length - forwardCount} lower-ranked candidates have no forward run (no ground peak or area)`);
   if (standard !== null) {
-    notes.push(`verdicts: the first-stage screen of permit guidance (PC below ${threshold_percent} % of ${standard.name}), common practice and never a legal decision; interim until the assessment part owns verdicts`);
+    notes.push(`verdicts: the assessment's screen of permit guidance (PC below ${threshold_percent} % of ${standard.name}${isLongTermStandard(standard) ? ', then PEC below the long-term threshold' : ''}), common practice and never a legal decision${weather.kind === 'steady' || !isLongTermStandard(standard) ? '; one steady state (or a mean against a short-term standard) gives indicative figures only, no screen decision' : ''}`);
   }
   control.onProgress?.(1, 'siting done');
   return {
@@ -395,7 +400,8 @@ export function rankCandidates(
   receptors: readonly PlacedReceptor[],
   map: SitingMap,
   pcAt: PcAt,
-  standard: AirQualityStandard | null,
+  /** the screen against the chosen standard (null without one) */
+  screen: ((pc_ug_m3: number) => ScreenedPc) | null,
   toLonLat: (x_m: number, y_m: number) => [number, number],
 ): RankedCandidate[] {
   const weights = map.receptorWeights;
@@ -404,7 +410,7 @@ export function rankCandidates(
     let highest = 0;
     for (let r = 1; r < receptorPc.length; r++) if (receptorPc[r] > receptorPc[highest]) highest = r;
     const combined = weights === null ? receptorPc[highest] : receptorPc.reduce((sum, value, r) => sum + weights[r] * value, 0);
-    const screened = standard === null ? null : screenPc(receptorPc[highest], standard);
+    const screened = screen === null ? null : screen(receptorPc[highest]);
     const [lon, lat] = toLonLat(position.x_m, position.y_m);
     const candidate: RankedCandidate = {
       rank: 0,

@@ -1,44 +1,52 @@
 /**
- * A process contribution (PC) as a percentage of a standard and the first-stage insignificance screen
- * of permit guidance: insignificant when PC < 1 % of a long-term standard or < 10 % of a short-term one
- * (../../shared/REFERENCES.md, "Screening of a process contribution": the steps read, the thresholds from
- * memory; common practice, never a legal decision). Interim: the assessment part (solver/assessment/,
- * issue 10) will own verdicts; this file stays as small as the siting ranking needs until then.
+ * The siting ranking's screen of a process contribution (PC): the assessment's own point verdict
+ * (../assessment/verdicts.ts pointVerdict: PC < 1 % of a long-term or < 10 % of a short-term standard,
+ * then PEC < 70 % of a long-term one; the scenario's thresholds, else the defaults; common practice in
+ * permit guidance, never a legal decision), with what the siting map's figure is for the standard:
+ * - a long-term standard and a mean over a wind rose or an hourly series: the statistic itself;
+ * - anything else (one steady state, or a mean against a short-term standard): indicative only, as a run
+ *   of one weather hour is.
  */
-import type { AirQualityStandard } from '../../scenarios/format/types.ts';
+import type { AirQualityStandard, ScreeningThresholds } from '../../scenarios/format/types.ts';
+import type { StandardFieldBasis } from '../drivers/types.ts';
+import { DEFAULT_SCREENING_THRESHOLDS, isLongTerm } from '../assessment/standards.ts';
+import { pointVerdict, type ScreenOutcome } from '../assessment/verdicts.ts';
 
-/** Averaging period from which a standard counts as long-term [h] (a year: the period mean). */
-export const LONG_TERM_AVERAGING_h = 8760;
-
-/** First-stage thresholds, % of the standard (common practice in permit guidance, from memory). */
-export const INSIGNIFICANT_PERCENT = Object.freeze({ longTerm: 1, shortTerm: 10 });
-
-export type ScreeningVerdict = 'insignificant' | 'not insignificant: assess further';
+export type ScreeningVerdict = ScreenOutcome;
 
 export interface ScreenedPc {
   /** PC as % of the standard's limit */
   percentOfStandard: number;
-  /** the threshold applied, % of the standard */
+  /** the first-stage threshold applied, % of the standard */
   threshold_percent: number;
   verdict: ScreeningVerdict;
 }
 
-/** Whether a standard is long-term (a period mean of a year or more). */
-export function isLongTerm(standard: AirQualityStandard): boolean {
-  return standard.averaging_h >= LONG_TERM_AVERAGING_h;
+/** How a siting figure stands to a standard (see the file's header). */
+export function sitingBasis(standard: Pick<AirQualityStandard, 'averaging_h'>, weatherKind: 'steady' | 'windRose' | 'hourly'): StandardFieldBasis {
+  return weatherKind !== 'steady' && isLongTerm(standard) ? 'statistic' : 'oneWeatherHour';
 }
 
 /**
- * Screen a PC [ug/m3] against a standard.
+ * A screen for the candidates' PCs against one standard.
  *
- * @example screenPc(3, { name: 'NO2 1-hour mean', limit_ug_m3: 200, averaging_h: 1, allowedExceedances: 18 })
- *   // { percentOfStandard: 1.5, threshold_percent: 10, verdict: 'insignificant' }
+ * @param background_ug_m3 the scenario's background (for the PEC stage of a long-term standard)
+ * @param thresholds the scenario's thresholds (default: the assessment's defaults)
+ * @example screenFor(annualNO2, 'windRose', 14)(0.3) // { percentOfStandard: 0.75, threshold_percent: 1, verdict: 'screenedOut' }
  */
-export function screenPc(pc_ug_m3: number, standard: AirQualityStandard): ScreenedPc {
+export function screenFor(
+  standard: AirQualityStandard,
+  weatherKind: 'steady' | 'windRose' | 'hourly',
+  background_ug_m3: number,
+  thresholds: ScreeningThresholds = DEFAULT_SCREENING_THRESHOLDS,
+): (pc_ug_m3: number) => ScreenedPc {
   if (!(standard.limit_ug_m3 > 0)) throw new RangeError(`standard ${standard.name}: limit_ug_m3 is ${standard.limit_ug_m3}; allowed: > 0`);
-  const percentOfStandard = (100 * pc_ug_m3) / standard.limit_ug_m3;
-  const threshold_percent = isLongTerm(standard) ? INSIGNIFICANT_PERCENT.longTerm : INSIGNIFICANT_PERCENT.shortTerm;
-  return { percentOfStandard, threshold_percent, verdict: percentOfStandard < threshold_percent ? 'insignificant' : 'not insignificant: assess further' };
+  const term = isLongTerm(standard) ? 'long' : 'short';
+  const basis = sitingBasis(standard, weatherKind);
+  return (pc_ug_m3) => {
+    const verdict = pointVerdict(pc_ug_m3, { limit_ug_m3: standard.limit_ug_m3, term }, background_ug_m3, thresholds, basis);
+    return { percentOfStandard: verdict.pcPercentOfStandard, threshold_percent: verdict.stage1.threshold_pct, verdict: verdict.outcome };
+  };
 }
 
 /**

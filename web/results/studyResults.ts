@@ -6,6 +6,8 @@
 import { formatConcentration } from '../colour/legendLevels.ts';
 import { escapeHtml } from '../map/escapeHtml.ts';
 import { offsetFromSite } from '../map/offsetWords.ts';
+import { OUTCOME_WORDS } from './verdictTable.ts';
+import type { ScreenOutcome } from '../../solver/assessment/verdicts.ts';
 import { lineChartSvg, type LineSeries } from './lineChart.ts';
 
 export interface SweepFile {
@@ -174,12 +176,10 @@ export interface ComparisonFile {
   caution: string;
 }
 
-const OUTCOME_NAMES: Record<string, string> = {
-  screenedOut: 'insignificant',
-  notScreenedOut: 'assess further',
-  undetermined: 'undecided',
-  indicative: 'indicative',
-};
+/** The screen's words for an outcome the server names (verdictTable.ts's), or the name itself when unknown. */
+export function outcomeName(outcome: string): string {
+  return escapeHtml(OUTCOME_WORDS[outcome as ScreenOutcome]?.text ?? outcome);
+}
 
 /** The server's comparison: each level's area in A and B, and every screening verdict that changes. */
 export function comparisonResultHtml(comparison: ComparisonFile, receptorNames: ReadonlyMap<string, string>): string {
@@ -198,7 +198,7 @@ export function comparisonResultHtml(comparison: ComparisonFile, receptorNames: 
         comparison.verdictChanges
           .map((v) => {
             const where = v.where === 'maximum' ? 'the point of maximum impact' : (receptorNames.get(v.where) ?? v.where);
-            return `<li>${escapeHtml(v.standard)} at ${escapeHtml(where)}: ${OUTCOME_NAMES[v.a] ?? escapeHtml(v.a)} (A, ${formatConcentration(v.a_pc_ug_m3)} µg/m³) → ${OUTCOME_NAMES[v.b] ?? escapeHtml(v.b)} (B, ${formatConcentration(v.b_pc_ug_m3)} µg/m³)</li>`;
+            return `<li>${escapeHtml(v.standard)} at ${escapeHtml(where)}: ${outcomeName(v.a)} (A, ${formatConcentration(v.a_pc_ug_m3)} µg/m³) → ${outcomeName(v.b)} (B, ${formatConcentration(v.b_pc_ug_m3)} µg/m³)</li>`;
           })
           .join('') +
         '</ul>';

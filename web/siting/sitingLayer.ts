@@ -9,6 +9,7 @@ import { SCREENING_CAUTION } from '../../server/writers/caution.ts';
 import type { ScaleKind } from '../colour/colourScale.ts';
 import { formatConcentration } from '../colour/legendLevels.ts';
 import { escapeHtml } from '../map/escapeHtml.ts';
+import { outcomeName } from '../results/studyResults.ts';
 import { bandAt, sitingBandStyles, sitingReadout, sitingValueAt, type BandStyle, type SitingMapContent, type SitingRaster } from './sitingMap.ts';
 
 /** Candidates beyond this rank are drawn as dots without their number (a fine lattice has hundreds). */
@@ -100,7 +101,7 @@ export class SitingLayer {
         }),
         title: `Candidate ${candidate.rank} (${candidate.id}): ${formatConcentration(candidate.combined_ug_m3)} µg/m³`,
       });
-      marker.bindTooltip(`Rank ${candidate.rank}, ${escapeHtml(candidate.id)}: ${formatConcentration(candidate.combined_ug_m3)} µg/m³${candidate.verdict ? `, ${escapeHtml(candidate.verdict)}` : ''}`);
+      marker.bindTooltip(`Rank ${candidate.rank}, ${escapeHtml(candidate.id)}: ${formatConcentration(candidate.combined_ug_m3)} µg/m³${candidate.verdict ? `, ${outcomeName(candidate.verdict)}` : ''}`);
       marker.on('add', () => marker.getElement()?.setAttribute('data-testid', `siting-candidate-${candidate.rank}`));
       marker.addTo(this.marks);
     });

@@ -19,7 +19,7 @@ import { runScenario, ScenarioInputError } from '../../../solver/drivers/runScen
 import { runSiting } from '../../../solver/siting/runSiting.ts';
 import { latticeInsideRing, lowestColumn } from '../../../solver/siting/candidates.ts';
 import { isInsideRing } from '../../../solver/grid/siteBoundary.ts';
-import { screenPc } from '../../../solver/siting/screening.ts';
+import { screenFor } from '../../../solver/siting/screening.ts';
 
 const site = { lat: 54.2, lon: -2.1, landUse: 'rural' as const };
 const projection = createLocalProjection(site);
@@ -189,13 +189,20 @@ describe('candidate positions', () => {
     expect(lowestColumn(map, new Uint8Array(4))).toBe(-1);
   });
 
-  it('screens a PC against the first-stage thresholds (REFERENCES.md: 1 % long-term, 10 % short-term)', () => {
+  it('screens a PC with the assessment\'s screen (REFERENCES.md: 1 % long-term, 10 % short-term, then PEC < 70 % long-term)', () => {
     const hourly = { name: 'NO2 1-hour mean', limit_ug_m3: 200, averaging_h: 1, allowedExceedances: 18 };
     const annual = { name: 'NO2 annual mean', limit_ug_m3: 40, averaging_h: 8760, allowedExceedances: 0 };
-    expect(screenPc(19.9, hourly).verdict).toBe('insignificant');
-    expect(screenPc(20, hourly).verdict).toMatch(/not insignificant/);
-    expect(screenPc(0.39, annual).verdict).toBe('insignificant');
-    expect(screenPc(0.4, annual).percentOfStandard).toBeCloseTo(1, 12);
-    expect(screenPc(0.4, annual).verdict).toMatch(/not insignificant/);
+    // a mean over a wind rose or a series is the annual statistic: a screen decision
+    const annualMean = screenFor(annual, 'windRose', 14);
+    expect(annualMean(0.39).verdict).toBe('screenedOut');
+    expect(annualMean(0.4).percentOfStandard).toBeCloseTo(1, 12);
+    expect(annualMean(0.4).threshold_percent).toBe(1);
+    // above 1 %, the PEC stage: 0.5 + 14 = 14.5 ug/m3 is 36 % of 40, below 70 %; with 28 background, 71 %
+    expect(annualMean(0.5).verdict).toBe('screenedOut');
+    expect(screenFor(annual, 'hourly', 28)(0.5).verdict).toBe('notScreenedOut');
+    // one steady state (or a mean against a short-term standard) is one weather hour: indicative only
+    expect(screenFor(hourly, 'steady', 14)(19.9)).toMatchObject({ threshold_percent: 10, verdict: 'indicative' });
+    expect(screenFor(hourly, 'windRose', 14)(19.9).verdict).toBe('indicative');
+    expect(screenFor(annual, 'steady', 14)(0.1).verdict).toBe('indicative');
   });
 });
